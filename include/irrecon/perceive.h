@@ -1,0 +1,102 @@
+/* irrecon/perceive.h: the "perceive groups" stage. From a molecule to an
+ * inventory of functional groups, each with the context that moves its bands
+ * (conjugation, ring size, N-H count, substitution pattern, H-bonding), plus
+ * bond counts and safety cautions.
+ *
+ * Perception keys (the `id` of a group; group tables refer to them with
+ * "key"). Attributes that apply are listed after each; all others are 0/"".
+ *
+ *   O-H:      alcohol_primary, alcohol_secondary, alcohol_tertiary  [hbond_intra]
+ *             phenol [hbond_intra], carboxylic_acid [conjugated], carboxylate
+ *   C=O:      ketone [conjugated, ring_size], diketone_1_2, diketone_1_3 (enol form
+ *             included), quinone, aldehyde [conjugated, aryl], ester [conjugated,
+ *             aryl = vinyl/aryl on the O side], lactone [ring_size, conjugated],
+ *             formate, anhydride [ring_size, conjugated], acid_halide [conjugated],
+ *             amide [n_h = 2 primary, 1 secondary, 0 tertiary; conjugated],
+ *             lactam [ring_size, n_h], imide [ring_size, n_h], urea [n_h],
+ *             carbamate [n_h], carbonate [ring_size]
+ *   N:        amine [n_h = 2/1/0; aryl = N on an aromatic ring], ammonium [n_h =
+ *             H on N+: 3/2/1/0], imine, oxime, hydrazone, nitro [aryl], nitroso,
+ *             azide, diazo, isocyanate, isothiocyanate, carbodiimide,
+ *             nitrile [conjugated], isonitrile
+ *   C-C:      alkyne_terminal, alkyne_internal,
+ *             alkene [pattern = vinyl | vinylidene | cis | trans | trisubstituted |
+ *             tetrasubstituted | unknown (1,2-disubstituted, stereo not given);
+ *             conjugated; ring_size when the C=C is in a ring], allene
+ *   aromatic: benzene_ring [pattern = mono | ortho | meta | para | 1,2,3 | 1,2,4 |
+ *             1,3,5 | penta_hexa | other; one per six-membered all-carbon
+ *             aromatic ring; fused rings count their fusion atoms as
+ *             substituted], pyridine_ring, pyrrole_nh (pyrrole/indole/imidazole
+ *             N-H), furan_ring, thiophene_ring
+ *   alkyl:    methyl, methylene, methine (counts in `count`), gem_dimethyl,
+ *             tert_butyl, isopropyl, long_chain (>= 4 contiguous CH2)
+ *   ethers:   ether [aryl = 0 dialkyl, 1 aryl alkyl, 2 diaryl], epoxide, peroxide
+ *   S:        thiol, sulfide, disulfide, sulfoxide, sulfone, sulfonamide [n_h],
+ *             sulfonate_ester, sulfonic_acid, sulfonyl_chloride, thiocarbonyl
+ *   P:        phosphine, phosphine_oxide, phosphate, phosphonate, p_h
+ *   Si, B:    si_h, si_methyl, siloxane (Si-O-Si or Si-O-C), boronic_acid,
+ *             boronic_ester
+ *   halogen:  c_f, c_cl, c_br, c_i [aryl]
+ *   other:    water (a water molecule as a component, e.g. a hydrate)
+ *
+ * A group entry merges the instances with the same id and attributes;
+ * `count` says how many there were and `atoms` lists all their atoms. */
+#ifndef IRRECON_PERCEIVE_H
+#define IRRECON_PERCEIVE_H
+
+#include <stddef.h>
+#include "irrecon/common.h"
+#include "irrecon/structure.h"
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+typedef struct irr_group_attrs {
+	int conjugated;     /* C=O, C=C or C#N conjugated with C=C or an aromatic ring */
+	int ring_size;      /* ring holding the group (lactone, cyclic ketone); 0 acyclic */
+	int n_h;            /* hydrogens on the group's nitrogen */
+	int aryl;           /* attached to an aromatic ring (meaning per key above) */
+	int hbond_intra;    /* intramolecular H-bond (salicylate-type) */
+	char pattern[24];   /* substitution pattern (benzene_ring, alkene) */
+} irr_group_attrs;
+
+typedef struct irr_group {
+	char id[40];        /* perception key, or the table id of a SMARTS group */
+	irr_group_attrs attrs;
+	int count;          /* instances merged into this entry */
+	size_t natoms;
+	const int *atoms;   /* 0-based atom indices, borrowed from the inventory */
+} irr_group;
+
+typedef struct irr_counts {
+	int o_h, n_h, c_n_triple, c_o_double, aromatic_rings;
+	int c_h_sp, c_h_sp2, c_h_sp3;
+	int ch3, ch2, ch;   /* sp3 carbons carrying 3, 2, 1 hydrogens */
+	int heavy_atoms, components;
+} irr_counts;
+
+typedef struct irr_inventory irr_inventory;
+struct irr_tables; /* from tables.h; SMARTS groups of user tables */
+
+/* Perceives the groups of m. When `tables` is not NULL, groups defined there
+ * by SMARTS (not by a perception key) are matched too. Caller owns *out. */
+int irr_perceive(irr_inventory **out, const irr_molecule *m,
+                 const struct irr_tables *tables, irr_error *err);
+void irr_inventory_free(irr_inventory *inv);
+
+size_t irr_inventory_group_count(const irr_inventory *inv);
+const irr_group *irr_inventory_group(const irr_inventory *inv, size_t i);
+/* First entry with this id, or NULL. */
+const irr_group *irr_inventory_find(const irr_inventory *inv, const char *id);
+const irr_counts *irr_inventory_counts(const irr_inventory *inv);
+
+/* Safety cautions for energetic or very toxic groups (azide, diazo,
+ * peroxide, polynitro, isocyanate, ...): static one-line texts. */
+size_t irr_inventory_caution_count(const irr_inventory *inv);
+const char *irr_inventory_caution(const irr_inventory *inv, size_t i);
+
+#ifdef __cplusplus
+}
+#endif
+#endif

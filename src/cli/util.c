@@ -1,0 +1,80 @@
+/* util.c: error printing and atomic output for the irrecon program. */
+#include "cli/cli.h"
+
+#include <errno.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+int cli_fail(const irr_error *err)
+{
+	char buf[2200];
+	irr_error_format(err, buf, sizeof buf);
+	fprintf(stderr, "irrecon: %s\n", buf[0] ? buf : "unknown error");
+	return CLI_ERROR;
+}
+
+int cli_usage_error(const char *cmd, const char *fmt, ...)
+{
+	va_list ap;
+	fprintf(stderr, "irrecon: %s: ", cmd);
+	va_start(ap, fmt);
+	vfprintf(stderr, fmt, ap);
+	va_end(ap);
+	fprintf(stderr, " (see 'irrecon %s --help')\n", cmd);
+	return CLI_ERROR;
+}
+
+int cli_write_file_atomic(const char *path, const char *data, size_t len,
+                          irr_error *err)
+{
+	char *tmp;
+	FILE *f;
+	size_t plen;
+	int fd;
+	if (!strcmp(path, "-")) {
+		if (fwrite(data, 1, len, stdout) != len || fflush(stdout) != 0)
+			return irr_error_set(err, IRR_EIO, "<stdout>", 0, "write failed: %s", strerror(errno));
+		return IRR_OK;
+	}
+	plen = strlen(path);
+	tmp = malloc(plen + 16);
+	if (!tmp)
+		return irr_error_set(err, IRR_ENOMEM, path, 0, "out of memory");
+	memcpy(tmp, path, plen);
+	memcpy(tmp + plen, ".tmp.XXXXXX", 12);
+	fd = mkstemp(tmp);
+	if (fd < 0) {
+		irr_error_set(err, IRR_EIO, path, 0, "cannot create a temporary file beside it: %s", strerror(errno));
+		free(tmp);
+		return IRR_EIO;
+	}
+	{
+		/* mkstemp makes 0600; give the result the usual 0666 & ~umask. */
+		mode_t um = umask(0);
+		umask(um);
+		fchmod(fd, 0666 & ~um);
+	}
+	f = fdopen(fd, "wb");
+	if (!f || fwrite(data, 1, len, f) != len || fflush(f) != 0 || fsync(fd) != 0) {
+		int e = errno;
+		if (f)
+			fclose(f);
+		else
+			close(fd);
+		unlink(tmp);
+		free(tmp);
+		return irr_error_set(err, IRR_EIO, path, 0, "write failed: %s", strerror(e));
+	}
+	if (fclose(f) != 0 || rename(tmp, path) != 0) {
+		int e = errno;
+		unlink(tmp);
+		free(tmp);
+		return irr_error_set(err, IRR_EIO, path, 0, "cannot write: %s", strerror(e));
+	}
+	free(tmp);
+	return IRR_OK;
+}
