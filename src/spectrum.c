@@ -1,0 +1,748 @@
+/* spectrum.c: the spectrum object of the "read spectrum" stage: creation,
+ * accessors, format detection, file reading with size limits, and
+ * normalisation to absorbance on an ascending cm-1 axis with saturated
+ * regions and the measured range marked. */
+#include "irrecon/spectrum.h"
+#include "jcamp.h"
+
+#include <errno.h>
+#include <fcntl.h>
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+/* Transmittance (fraction) at or below which the detector is taken to see
+ * no light: A >= 3. Photometric accuracy of FT-IR and dispersive
+ * instruments is poor above A ~ 2-3 (common practice), and the shared set
+ * shows instruments that floor there (a C=O band at T ~ 0). */
+#define T_FLOOR 1e-3
+/* A flat top (several equal points at the very maximum) below this
+ * absorbance is taken as quantisation, not clipping. */
+#define CLIP_MIN_ABSORBANCE 1.0
+/* Points in flat runs at the extreme needed to call it clipping: two runs of
+ * two (toluene-atr.csv: 694 and 728 cm-1 both at A = 5.000) or one of three. */
+#define CLIP_MIN_POINTS 3
+
+const char *irr_yunits_name(irr_yunits u)
+{
+	static const char *const names[] = {
+		"unknown", "transmittance", "percent_transmittance", "absorbance",
+		"reflectance", "kubelka_munk", "arbitrary"};
+	if ((int)u < 0 || (size_t)u >= sizeof names / sizeof names[0])
+		return "unknown";
+	return names[u];
+}
+
+void irr_read_options_init(irr_read_options *o)
+{
+	if (!o)
+		return;
+	memset(o, 0, sizeof *o);
+	o->block = 0;
+	o->y_units = IRR_Y_UNKNOWN;
+	o->max_bytes = IRR_SPECTRUM__DEFAULT_MAX_BYTES;
+	o->max_points = IRR_SPECTRUM__DEFAULT_MAX_POINTS;
+}
+
+size_t irr_spectrum__max_points(const irr_read_options *o)
+{
+	return (o && o->max_points) ? o->max_points : IRR_SPECTRUM__DEFAULT_MAX_POINTS;
+}
+
+size_t irr_spectrum__max_bytes(const irr_read_options *o)
+{
+	return (o && o->max_bytes) ? o->max_bytes : IRR_SPECTRUM__DEFAULT_MAX_BYTES;
+}
+
+static char *dup_str(const char *s)
+{
+	size_t n = strlen(s ? s : "");
+	char *d = malloc(n + 1);
+	if (d)
+		memcpy(d, s ? s : "", n + 1);
+	return d;
+}
+
+int irr_spectrum__create(irr_spectrum **out, size_t n, const char *name,
+                         const char *format, irr_error *err)
+{
+	irr_spectrum *s;
+	*out = NULL;
+	s = calloc(1, sizeof *s);
+	if (!s)
+		return irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
+	s->name = dup_str(name);
+	s->title = dup_str("");
+	s->format = format;
+	if (n) {
+		s->x = malloc(n * sizeof *s->x);
+		s->y = malloc(n * sizeof *s->y);
+	}
+	if (!s->name || !s->title || (n && (!s->x || !s->y))) {
+		irr_spectrum_free(s);
+		return irr_error_set(err, IRR_ENOMEM, name, 0,
+		                     "out of memory for %zu points", n);
+	}
+	s->n = n;
+	*out = s;
+	return IRR_OK;
+}
+
+void irr_spectrum__adopt(irr_spectrum *s, double *x, double *y, size_t n)
+{
+	free(s->x);
+	free(s->y);
+	s->x = x;
+	s->y = y;
+	s->n = n;
+}
+
+int irr_spectrum__set_title(irr_spectrum *s, const char *title, size_t len)
+{
+	char *t = malloc(len + 1);
+	if (!t)
+		return IRR_ENOMEM;
+	memcpy(t, title, len);
+	t[len] = '\0';
+	free(s->title);
+	s->title = t;
+	return IRR_OK;
+}
+
+int irr_spectrum__warn(irr_spectrum *s, const char *fmt, ...)
+{
+	char buf[512];
+	va_list ap;
+	va_start(ap, fmt);
+	vsnprintf(buf, sizeof buf, fmt, ap);
+	va_end(ap);
+	for (char *p = buf; *p; p++)
+		if (*p == '\n' || *p == '\r')
+			*p = ' ';
+	/* The same warning twice (e.g. once per block line) says nothing new. */
+	for (size_t i = 0; i < s->nwarn; i++)
+		if (!strcmp(s->warnings[i], buf))
+			return IRR_OK;
+	if (s->nwarn == s->capwarn) {
+		size_t cap = s->capwarn ? 2 * s->capwarn : 4;
+		char **w = realloc(s->warnings, cap * sizeof *w);
+		if (!w)
+			return IRR_ENOMEM;
+		s->warnings = w;
+		s->capwarn = cap;
+	}
+	if (!(s->warnings[s->nwarn] = dup_str(buf)))
+		return IRR_ENOMEM;
+	s->nwarn++;
+	return IRR_OK;
+}
+
+int irr_spectrum__check_xy(const irr_spectrum *s, const long *lines, irr_error *err)
+{
+	size_t n = s->n;
+	const double *x = s->x, *y = s->y;
+	if (n < 2)
+		return irr_error_set(err, IRR_EINPUT, s->name, lines && n ? lines[0] : 0,
+		                     "%zu data point%s: a spectrum needs at least 2",
+		                     n, n == 1 ? "" : "s");
+	for (size_t i = 0; i < n; i++)
+		if (!isfinite(x[i]) || !isfinite(y[i]))
+			return irr_error_set(err, IRR_EINPUT, s->name, lines ? lines[i] : 0,
+			                     "point %zu is not a finite number (NaN or infinity)",
+			                     i + 1);
+	{
+		int up = x[1] > x[0];
+		for (size_t i = 1; i < n; i++) {
+			double d = x[i] - x[i - 1];
+			if (up ? !(d > 0) : !(d < 0)) {
+				char a[40], b[40];
+				irr_format_double(a, sizeof a, x[i - 1], -1);
+				irr_format_double(b, sizeof b, x[i], -1);
+				return irr_error_set(err, IRR_EINPUT, s->name, lines ? lines[i] : 0,
+				                     "X is not strictly %s: %s is followed by %s",
+				                     up ? "increasing" : "decreasing", a, b);
+			}
+		}
+	}
+	return IRR_OK;
+}
+
+int irr_spectrum_from_xy(irr_spectrum **out, const double *x, const double *y,
+                         size_t n, irr_yunits units, const char *name,
+                         irr_error *err)
+{
+	irr_spectrum *s;
+	int rc;
+	if (!out)
+		return irr_error_set(err, IRR_EINPUT, name, 0, "no output pointer");
+	*out = NULL;
+	if (!name)
+		name = "arrays";
+	if (n && (!x || !y))
+		return irr_error_set(err, IRR_EINPUT, name, 0, "no data arrays");
+	if ((rc = irr_spectrum__create(&s, n, name, "arrays", err)) < 0)
+		return rc;
+	if (n) {
+		memcpy(s->x, x, n * sizeof *x);
+		memcpy(s->y, y, n * sizeof *y);
+	}
+	if ((rc = irr_spectrum__check_xy(s, NULL, err)) < 0) {
+		irr_spectrum_free(s);
+		return rc;
+	}
+	s->units = s->source_units = units;
+	s->first_x = s->x[0];
+	s->last_x = s->x[n - 1];
+	*out = s;
+	return IRR_OK;
+}
+
+void irr_spectrum_free(irr_spectrum *s)
+{
+	if (!s)
+		return;
+	free(s->x);
+	free(s->y);
+	free(s->name);
+	free(s->title);
+	for (size_t i = 0; i < s->nwarn; i++)
+		free(s->warnings[i]);
+	free(s->warnings);
+	free(s->sat);
+	free(s);
+}
+
+/* ---- reading ---------------------------------------------------------- */
+
+static long line_of(const char *data, size_t off)
+{
+	long line = 1;
+	for (size_t i = 0; i < off; i++)
+		if (data[i] == '\n')
+			line++;
+	return line;
+}
+
+int irr_spectrum__slurp(char **out, size_t *len, const char *path,
+                        size_t max_bytes, irr_error *err)
+{
+	int fd;
+	struct stat st;
+	char *buf = NULL;
+	size_t cap = 0, n = 0;
+	int rc = IRR_OK;
+	*out = NULL;
+	*len = 0;
+	fd = open(path, O_RDONLY | O_CLOEXEC);
+	if (fd < 0)
+		return irr_error_set(err, IRR_EIO, path, 0, "cannot open: %s", strerror(errno));
+	if (fstat(fd, &st) == 0 && S_ISDIR(st.st_mode)) {
+		close(fd);
+		return irr_error_set(err, IRR_EIO, path, 0, "is a directory, not a file");
+	}
+	/* The size limit is checked before anything is allocated, so an
+	 * oversized file costs nothing. */
+	if (S_ISREG(st.st_mode)) {
+		if ((unsigned long long)st.st_size > (unsigned long long)max_bytes) {
+			close(fd);
+			return irr_error_set(err, IRR_ELIMIT, path, 0,
+			                     "file is %lld bytes, more than the limit of %zu",
+			                     (long long)st.st_size, max_bytes);
+		}
+		cap = (size_t)st.st_size + 1;
+	} else {
+		cap = 65536;
+	}
+	for (;;) {
+		ssize_t r;
+		if (n + 1 >= cap || !buf) {
+			size_t ncap = buf ? 2 * cap : cap;
+			char *nb;
+			if (buf && cap > max_bytes + 1) {
+				rc = irr_error_set(err, IRR_ELIMIT, path, 0,
+				                   "input is more than the limit of %zu bytes", max_bytes);
+				goto done;
+			}
+			if (ncap > max_bytes + 2)
+				ncap = max_bytes + 2;
+			if (!(nb = realloc(buf, ncap))) {
+				rc = irr_error_set(err, IRR_ENOMEM, path, 0, "out of memory");
+				goto done;
+			}
+			buf = nb;
+			cap = ncap;
+		}
+		r = read(fd, buf + n, cap - 1 - n);
+		if (r < 0) {
+			if (errno == EINTR)
+				continue;
+			rc = irr_error_set(err, IRR_EIO, path, 0, "read error: %s", strerror(errno));
+			goto done;
+		}
+		if (r == 0)
+			break;
+		/* Binary data is refused from its first chunk, before a large
+		 * file is read in full. */
+		if (n == 0) {
+			const char *z = memchr(buf, '\0', (size_t)r);
+			if (z) {
+				rc = irr_error_set(err, IRR_EINPUT, path, line_of(buf, (size_t)(z - buf)),
+				                   "binary data (a NUL byte), not a JCAMP-DX or CSV text file");
+				goto done;
+			}
+		}
+		n += (size_t)r;
+		if (n > max_bytes) {
+			rc = irr_error_set(err, IRR_ELIMIT, path, 0,
+			                   "input is more than the limit of %zu bytes", max_bytes);
+			goto done;
+		}
+	}
+	buf[n] = '\0';
+done:
+	close(fd);
+	if (rc < 0) {
+		free(buf);
+		return rc;
+	}
+	*out = buf;
+	*len = n;
+	return IRR_OK;
+}
+
+static int looks_like_jcamp(const char *data, size_t len)
+{
+	size_t i = 0;
+	if (len >= 3 && (unsigned char)data[0] == 0xEF && (unsigned char)data[1] == 0xBB &&
+	    (unsigned char)data[2] == 0xBF)
+		i = 3;
+	while (i < len && (data[i] == ' ' || data[i] == '\t' || data[i] == '\r' || data[i] == '\n'))
+		i++;
+	return i + 1 < len && data[i] == '#' && data[i + 1] == '#';
+}
+
+int irr_spectrum_read_memory(irr_spectrum **out, const char *data, size_t len,
+                             const char *name, const irr_read_options *o,
+                             irr_error *err)
+{
+	irr_read_options def;
+	char *copy = NULL;
+	const char *z;
+	int rc;
+	if (!out)
+		return irr_error_set(err, IRR_EINPUT, name, 0, "no output pointer");
+	*out = NULL;
+	if (!name)
+		name = "memory";
+	if (!o) {
+		irr_read_options_init(&def);
+		o = &def;
+	}
+	if (!data)
+		len = 0;
+	if (len > irr_spectrum__max_bytes(o))
+		return irr_error_set(err, IRR_ELIMIT, name, 0,
+		                     "input is %zu bytes, more than the limit of %zu",
+		                     len, irr_spectrum__max_bytes(o));
+	if (len && (z = memchr(data, '\0', len)))
+		return irr_error_set(err, IRR_EINPUT, name, line_of(data, (size_t)(z - data)),
+		                     "binary data (a NUL byte), not a JCAMP-DX or CSV text file");
+	/* The readers rely on a terminating NUL; a caller's buffer need not
+	 * have one. */
+	if (!(copy = malloc(len + 1)))
+		return irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
+	if (len)
+		memcpy(copy, data, len);
+	copy[len] = '\0';
+	if (looks_like_jcamp(copy, len))
+		rc = irr_jcamp__read(out, copy, len, name, o, err);
+	else
+		rc = irr_csv__read(out, copy, len, name, o, err);
+	free(copy);
+	return rc;
+}
+
+int irr_spectrum_read_file(irr_spectrum **out, const char *path,
+                           const irr_read_options *o, irr_error *err)
+{
+	irr_read_options def;
+	char *buf;
+	size_t len;
+	const char *z;
+	int rc;
+	if (!out)
+		return irr_error_set(err, IRR_EINPUT, path, 0, "no output pointer");
+	*out = NULL;
+	if (!path)
+		return irr_error_set(err, IRR_EINPUT, "", 0, "no file name");
+	if (!o) {
+		irr_read_options_init(&def);
+		o = &def;
+	}
+	if ((rc = irr_spectrum__slurp(&buf, &len, path, irr_spectrum__max_bytes(o), err)) < 0)
+		return rc;
+	if (len && (z = memchr(buf, '\0', len)))
+		rc = irr_error_set(err, IRR_EINPUT, path, line_of(buf, (size_t)(z - buf)),
+		                   "binary data (a NUL byte), not a JCAMP-DX or CSV text file");
+	else if (looks_like_jcamp(buf, len))
+		rc = irr_jcamp__read(out, buf, len, path, o, err);
+	else
+		rc = irr_csv__read(out, buf, len, path, o, err);
+	free(buf);
+	return rc;
+}
+
+int irr_jcamp_list_blocks(irr_block_info **out, size_t *count, const char *path,
+                          irr_error *err)
+{
+	char *buf;
+	size_t len;
+	int rc;
+	if (!out || !count)
+		return irr_error_set(err, IRR_EINPUT, path, 0, "no output pointer");
+	*out = NULL;
+	*count = 0;
+	if ((rc = irr_spectrum__slurp(&buf, &len, path, IRR_SPECTRUM__DEFAULT_MAX_BYTES, err)) < 0)
+		return rc;
+	if (!looks_like_jcamp(buf, len))
+		rc = irr_error_set(err, IRR_EINPUT, path, 1,
+		                   "not a JCAMP-DX file (it does not start with a ##LABEL= record)");
+	else
+		rc = irr_jcamp__list_blocks(out, count, buf, len, path, err);
+	free(buf);
+	return rc;
+}
+
+/* ---- accessors -------------------------------------------------------- */
+
+size_t irr_spectrum_points(const irr_spectrum *s) { return s ? s->n : 0; }
+const double *irr_spectrum_x(const irr_spectrum *s) { return s ? s->x : NULL; }
+const double *irr_spectrum_y(const irr_spectrum *s) { return s ? s->y : NULL; }
+irr_yunits irr_spectrum_y_units(const irr_spectrum *s) { return s ? s->units : IRR_Y_UNKNOWN; }
+irr_yunits irr_spectrum_source_y_units(const irr_spectrum *s)
+{
+	return s ? s->source_units : IRR_Y_UNKNOWN;
+}
+int irr_spectrum_is_normalised(const irr_spectrum *s) { return s ? s->normalised : 0; }
+const char *irr_spectrum_name(const irr_spectrum *s) { return s && s->name ? s->name : ""; }
+const char *irr_spectrum_source_format(const irr_spectrum *s)
+{
+	return s && s->format ? s->format : "";
+}
+const char *irr_spectrum_title(const irr_spectrum *s) { return s && s->title ? s->title : ""; }
+double irr_spectrum_first_x(const irr_spectrum *s) { return s ? s->first_x : 0.0; }
+double irr_spectrum_last_x(const irr_spectrum *s) { return s ? s->last_x : 0.0; }
+size_t irr_spectrum_warning_count(const irr_spectrum *s) { return s ? s->nwarn : 0; }
+const char *irr_spectrum_warning(const irr_spectrum *s, size_t i)
+{
+	return s && i < s->nwarn ? s->warnings[i] : NULL;
+}
+size_t irr_spectrum_saturated_count(const irr_spectrum *s) { return s ? s->nsat : 0; }
+
+void irr_spectrum_saturated_range(const irr_spectrum *s, size_t i, double *low,
+                                  double *high)
+{
+	double lo = 0.0, hi = 0.0;
+	if (s && i < s->nsat) {
+		lo = s->sat[2 * i];
+		hi = s->sat[2 * i + 1];
+	}
+	if (low)
+		*low = lo;
+	if (high)
+		*high = hi;
+}
+
+void irr_spectrum_range(const irr_spectrum *s, double *low, double *high)
+{
+	double lo = 0.0, hi = 0.0;
+	if (s && s->normalised) {
+		lo = s->range_lo;
+		hi = s->range_hi;
+	} else if (s && s->n) {
+		/* Before normalisation: the range as read, in cm-1. */
+		double a = s->x[0], b = s->x[s->n - 1];
+		if (s->x_micrometers && a > 0 && b > 0) {
+			a = 1e4 / a;
+			b = 1e4 / b;
+		}
+		lo = a < b ? a : b;
+		hi = a < b ? b : a;
+	}
+	if (low)
+		*low = lo;
+	if (high)
+		*high = hi;
+}
+
+/* ---- normalisation ---------------------------------------------------- */
+
+static void swap_d(double *a, double *b)
+{
+	double t = *a;
+	*a = *b;
+	*b = t;
+}
+
+/* k-th smallest of v[0..n-1] (reorders v): Hoare's selection, O(n)
+ * expected, so unit detection costs no sort. */
+static double select_kth(double *v, size_t n, size_t k)
+{
+	size_t lo = 0, hi = n - 1;
+	while (lo < hi) {
+		double pivot = v[lo + (hi - lo) / 2];
+		size_t i = lo, j = hi;
+		while (i <= j) {
+			while (v[i] < pivot)
+				i++;
+			while (v[j] > pivot)
+				j--;
+			if (i <= j) {
+				swap_d(&v[i], &v[j]);
+				i++;
+				if (j == 0)
+					break;
+				j--;
+			}
+		}
+		if (k <= j)
+			hi = j;
+		else if (k >= i)
+			lo = i;
+		else
+			break;
+	}
+	return v[k];
+}
+
+/* Where the median sits between the minimum and the maximum, 0..1: a
+ * transmittance spectrum has its baseline (most points) near the top, an
+ * absorbance spectrum near the bottom. */
+static int median_position(const double *y, size_t n, double *pos, double *lo, double *hi)
+{
+	double *tmp = malloc(n * sizeof *tmp);
+	double mn = y[0], mx = y[0], med;
+	if (!tmp)
+		return IRR_ENOMEM;
+	for (size_t i = 0; i < n; i++) {
+		tmp[i] = y[i];
+		if (y[i] < mn)
+			mn = y[i];
+		if (y[i] > mx)
+			mx = y[i];
+	}
+	med = select_kth(tmp, n, n / 2);
+	free(tmp);
+	*lo = mn;
+	*hi = mx;
+	*pos = mx > mn ? (med - mn) / (mx - mn) : 0.0;
+	return IRR_OK;
+}
+
+static int add_sat(irr_spectrum *s, double lo, double hi)
+{
+	if (s->nsat == s->capsat) {
+		size_t cap = s->capsat ? 2 * s->capsat : 4;
+		double *p = realloc(s->sat, 2 * cap * sizeof *p);
+		if (!p)
+			return IRR_ENOMEM;
+		s->sat = p;
+		s->capsat = cap;
+	}
+	s->sat[2 * s->nsat] = lo;
+	s->sat[2 * s->nsat + 1] = hi;
+	s->nsat++;
+	return IRR_OK;
+}
+
+/* Marks points that sit in flat runs (>= 2 equal neighbours) at the extreme
+ * value `e` of y; returns how many were marked. An instrument that clips
+ * writes one constant for every point beyond its limit. */
+static size_t mark_flat_extreme(const double *y, size_t n, double e, unsigned char *mark)
+{
+	double tol = 1e-9 * (fabs(e) > 1.0 ? fabs(e) : 1.0);
+	size_t count = 0, i = 0;
+	while (i < n) {
+		size_t j = i;
+		while (j < n && fabs(y[j] - e) <= tol)
+			j++;
+		if (j - i >= 2) {
+			for (size_t k = i; k < j; k++)
+				mark[k] = 1;
+			count += j - i;
+		}
+		i = j > i ? j : i + 1;
+	}
+	return count;
+}
+
+int irr_spectrum_normalise(irr_spectrum *s, irr_error *err)
+{
+	size_t n;
+	double *x, *y;
+	unsigned char *sat = NULL;
+	irr_yunits u;
+	int rc = IRR_OK, transmittance = 0;
+	if (!s)
+		return irr_error_set(err, IRR_EINPUT, "", 0, "no spectrum");
+	if (s->normalised)
+		return IRR_OK;
+	n = s->n;
+	x = s->x;
+	y = s->y;
+	if (n < 2)
+		return irr_error_set(err, IRR_EINPUT, s->name, 0,
+		                     "%zu data point(s): a spectrum needs at least 2", n);
+
+	/* Axis: cm-1 = 1e4 / um, then ascending. */
+	if (s->x_micrometers) {
+		/* All checked before any is changed: a failure leaves s as it was. */
+		for (size_t i = 0; i < n; i++)
+			if (!(x[i] > 0))
+				return irr_error_set(err, IRR_EINPUT, s->name, 0,
+				                     "wavelength %g micrometres is not positive", x[i]);
+		for (size_t i = 0; i < n; i++)
+			x[i] = 1e4 / x[i];
+		s->x_micrometers = 0;
+	}
+	if (x[0] > x[n - 1])
+		for (size_t i = 0, j = n - 1; i < j; i++, j--) {
+			swap_d(&x[i], &x[j]);
+			swap_d(&y[i], &y[j]);
+		}
+
+	/* Units. */
+	u = s->units;
+	if (u == IRR_Y_UNKNOWN || u == IRR_Y_ARBITRARY) {
+		double pos, lo, hi;
+		const char *what = u == IRR_Y_UNKNOWN ? "Y units not stated" : "Y in arbitrary units";
+		if ((rc = median_position(y, n, &pos, &lo, &hi)) < 0)
+			goto nomem;
+		if (hi > 10.0 && hi <= 200.0 && lo >= -10.0 && pos > 0.5) {
+			u = IRR_Y_PERCENT_T;
+			rc = irr_spectrum__warn(s, "%s: read as percent transmittance (values up to %.4g, baseline near the top)", what, hi);
+		} else if (hi <= 1.5 && pos > 0.5) {
+			u = IRR_Y_TRANSMITTANCE;
+			rc = irr_spectrum__warn(s, "%s: read as transmittance (values 0-1, baseline near the top)", what);
+		} else {
+			u = IRR_Y_ABSORBANCE;
+			rc = irr_spectrum__warn(s, "%s: read as absorbance (baseline near the bottom)", what);
+		}
+		if (rc < 0)
+			goto nomem;
+	} else if (u == IRR_Y_TRANSMITTANCE || u == IRR_Y_REFLECTANCE) {
+		/* Files label percent values TRANSMITTANCE too (indene-difdup,
+		 * fixinc1 up to 112 %T): a fraction never reaches 2. */
+		double hi = y[0];
+		for (size_t i = 1; i < n; i++)
+			if (y[i] > hi)
+				hi = y[i];
+		if (hi > 2.0) {
+			if (u == IRR_Y_TRANSMITTANCE) {
+				u = IRR_Y_PERCENT_T;
+				rc = irr_spectrum__warn(s, "transmittance values reach %.4g: read as percent", hi);
+			} else {
+				for (size_t i = 0; i < n; i++)
+					y[i] /= 100.0;
+				rc = irr_spectrum__warn(s, "reflectance values reach %.4g: read as percent", hi);
+			}
+			if (rc < 0)
+				goto nomem;
+		}
+	}
+	if (u == IRR_Y_PERCENT_T) {
+		for (size_t i = 0; i < n; i++)
+			y[i] /= 100.0;
+		u = IRR_Y_TRANSMITTANCE;
+	}
+	if (u == IRR_Y_REFLECTANCE) {
+		/* log10(1/R), the usual absorbance-like form of reflectance. */
+		if ((rc = irr_spectrum__warn(s, "reflectance converted to log10(1/R)")) < 0)
+			goto nomem;
+		transmittance = 1;
+	} else if (u == IRR_Y_TRANSMITTANCE) {
+		transmittance = 1;
+	} else if (u == IRR_Y_KUBELKA_MUNK) {
+		if ((rc = irr_spectrum__warn(s, "Kubelka-Munk values used as absorbance (both grow with concentration)")) < 0)
+			goto nomem;
+	}
+
+	if (!(sat = calloc(n, 1)))
+		goto nomem;
+	if (transmittance) {
+		/* Saturated: no light reaches the detector (T at or below the
+		 * floor), or the minimum is clipped flat. */
+		double tmin = y[0], tminpos = HUGE_VAL, ceiling;
+		for (size_t i = 0; i < n; i++) {
+			if (y[i] < tmin)
+				tmin = y[i];
+			if (y[i] > 0 && y[i] < tminpos)
+				tminpos = y[i];
+			if (y[i] <= T_FLOOR)
+				sat[i] = 1;
+		}
+		if (tminpos == HUGE_VAL) {
+			free(sat);
+			return irr_error_set(err, IRR_EINPUT, s->name, 0,
+			                     "no transmittance value is above zero: the spectrum is all saturated or not transmittance");
+		}
+		if (tmin > 0 && -log10(tmin) >= CLIP_MIN_ABSORBANCE) {
+			unsigned char *m = calloc(n, 1);
+			if (!m)
+				goto nomem;
+			if (mark_flat_extreme(y, n, tmin, m) >= CLIP_MIN_POINTS)
+				for (size_t i = 0; i < n; i++)
+					sat[i] |= m[i];
+			free(m);
+		}
+		/* T <= 0 has no absorbance; such points get the highest measured
+		 * one and are flagged saturated. */
+		ceiling = -log10(tminpos);
+		for (size_t i = 0; i < n; i++)
+			y[i] = y[i] > 0 ? -log10(y[i]) : ceiling;
+	} else {
+		double amax = y[0];
+		for (size_t i = 1; i < n; i++)
+			if (y[i] > amax)
+				amax = y[i];
+		if (amax >= CLIP_MIN_ABSORBANCE) {
+			unsigned char *m = calloc(n, 1);
+			if (!m)
+				goto nomem;
+			if (mark_flat_extreme(y, n, amax, m) >= CLIP_MIN_POINTS)
+				memcpy(sat, m, n);
+			free(m);
+		}
+	}
+	s->nsat = 0;
+	for (size_t i = 0; i < n;) {
+		size_t j = i;
+		double lo, hi;
+		if (!sat[i]) {
+			i++;
+			continue;
+		}
+		while (j < n && sat[j])
+			j++;
+		/* The range reaches half-way to the unsaturated neighbours: the
+		 * band's true top lies somewhere in there. */
+		lo = i > 0 ? 0.5 * (x[i - 1] + x[i]) : x[i];
+		hi = j < n ? 0.5 * (x[j - 1] + x[j]) : x[j - 1];
+		if ((rc = add_sat(s, lo, hi)) < 0)
+			goto nomem;
+		i = j;
+	}
+	free(sat);
+	s->units = IRR_Y_ABSORBANCE;
+	s->range_lo = x[0];
+	s->range_hi = x[n - 1];
+	s->normalised = 1;
+	return IRR_OK;
+nomem:
+	free(sat);
+	return irr_error_set(err, IRR_ENOMEM, s->name, 0, "out of memory");
+}
