@@ -1,0 +1,578 @@
+/* structure.c: the "read structure" stage. Checks the SMILES text, has the
+ * Open Babel shim parse it, and keeps the heavy-atom graph (atoms, bonds,
+ * neighbour lists, SSSR rings, components) that perception works on;
+ * wraps SMARTS compilation and matching for user tables.
+ *
+ * Not thread-safe: Open Babel's state is process-global (see obshim.h). */
+#include "irrecon/structure.h"
+#include "obshim.h"
+
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+struct irr_molecule {
+	char *smiles;
+	size_t natoms, nbonds, nrings;
+	irr_atom *atoms;
+	irr_bond *bonds;
+	size_t *nbr_start;   /* natoms + 1 */
+	int *nbr_bonds;      /* 2 * nbonds bond indices */
+	size_t *ring_start;  /* nrings + 1 */
+	int *ring_atoms;
+	int ncomponents;
+	double mass;
+	char *formula;
+	irr_obshim_mol *ob;
+};
+
+struct irr_smarts {
+	irr_obshim_smarts *p;
+};
+
+/* Longest SMILES text accepted before any parsing (about 40 characters per
+ * heavy atom leaves room for bracket atoms, stereo marks and ring bonds). */
+#define MAX_SMILES_CHARS ((size_t)IRR_MAX_HEAVY_ATOMS * 40)
+
+static const char *const element_symbols[] = {
+	"*", "H", "He", "Li", "Be", "B", "C", "N", "O", "F", "Ne", "Na", "Mg", "Al",
+	"Si", "P", "S", "Cl", "Ar", "K", "Ca", "Sc", "Ti", "V", "Cr", "Mn", "Fe", "Co",
+	"Ni", "Cu", "Zn", "Ga", "Ge", "As", "Se", "Br", "Kr", "Rb", "Sr", "Y", "Zr",
+	"Nb", "Mo", "Tc", "Ru", "Rh", "Pd", "Ag", "Cd", "In", "Sn", "Sb", "Te", "I",
+	"Xe", "Cs", "Ba", "La", "Ce", "Pr", "Nd", "Pm", "Sm", "Eu", "Gd", "Tb", "Dy",
+	"Ho", "Er", "Tm", "Yb", "Lu", "Hf", "Ta", "W", "Re", "Os", "Ir", "Pt", "Au",
+	"Hg", "Tl", "Pb", "Bi", "Po", "At", "Rn", "Fr", "Ra", "Ac", "Th", "Pa", "U",
+	"Np", "Pu", "Am", "Cm", "Bk", "Cf", "Es", "Fm", "Md", "No", "Lr", "Rf", "Db",
+	"Sg", "Bh", "Hs", "Mt", "Ds", "Rg", "Cn", "Nh", "Fl", "Mc", "Lv", "Ts", "Og"};
+#define N_ELEMENTS ((int)(sizeof element_symbols / sizeof element_symbols[0]))
+
+static int element_of(const char *sym, size_t len)
+{
+	for (int z = 1; z < N_ELEMENTS; z++)
+		if (strlen(element_symbols[z]) == len && memcmp(element_symbols[z], sym, len) == 0)
+			return z;
+	return -1;
+}
+
+/* The element symbol at s inside a bracket atom: its length, or 0 when s
+ * does not start with a known element (aromatic spellings included). */
+static size_t bracket_symbol(const char *s, int *is_h)
+{
+	static const char *const aromatic[] = {"se", "as", "te", "si", "c", "n", "o", "p", "s", "b"};
+	*is_h = 0;
+	if (*s == '*')
+		return 1;
+	for (size_t i = 0; i < sizeof aromatic / sizeof aromatic[0]; i++) {
+		size_t n = strlen(aromatic[i]);
+		if (strncmp(s, aromatic[i], n) == 0)
+			return n;
+	}
+	if (*s < 'A' || *s > 'Z')
+		return 0;
+	if (s[1] >= 'a' && s[1] <= 'z' && element_of(s, 2) > 0)
+		return 2;
+	if (element_of(s, 1) > 0) {
+		*is_h = (*s == 'H');
+		return 1;
+	}
+	return 0;
+}
+
+/* A quick syntax pass of our own, before Open Babel: Open Babel 3.1.1
+ * silently accepts an unclosed branch ("CC(C") and rejects some input
+ * without giving any reason, so the common mistakes are named here, with
+ * their position. Also counts heavy atoms for the size limit. One loop,
+ * no recursion: the input length cannot grow the stack. */
+static int check_syntax(const char *s, size_t *heavy, char *why, size_t why_size)
+{
+	size_t depth = 0, first_open = 0;
+	size_t *opens = NULL; /* positions of unclosed '(' (a stack) */
+	size_t cap = 0;
+	int rc = IRR_OK;
+	*heavy = 0;
+	for (size_t i = 0; s[i]; i++) {
+		unsigned char c = (unsigned char)s[i];
+		if (c <= ' ' || c >= 127) {
+			snprintf(why, why_size, "%s at position %zu",
+			         c == ' ' || c == '\t' ? "blank inside the SMILES" :
+			         c >= 127 ? "non-ASCII character" : "control character", i + 1);
+			rc = IRR_EINPUT;
+			goto done;
+		}
+		if (c == '(') {
+			if (depth == cap) {
+				size_t ncap = cap ? 2 * cap : 16;
+				size_t *n = realloc(opens, ncap * sizeof *n);
+				if (!n) {
+					rc = IRR_ENOMEM;
+					goto done;
+				}
+				opens = n;
+				cap = ncap;
+			}
+			opens[depth++] = i;
+		} else if (c == ')') {
+			if (depth == 0) {
+				snprintf(why, why_size, "unbalanced ')' at position %zu (no branch open)", i + 1);
+				rc = IRR_EINPUT;
+				goto done;
+			}
+			depth--;
+		} else if (c == '[') {
+			const char *close = strchr(s + i, ']');
+			size_t j = i + 1;
+			int is_h;
+			if (!close) {
+				snprintf(why, why_size, "unclosed '[' at position %zu", i + 1);
+				rc = IRR_EINPUT;
+				goto done;
+			}
+			while (s[j] >= '0' && s[j] <= '9')
+				j++;
+			size_t n = bracket_symbol(s + j, &is_h);
+			if (n == 0) {
+				size_t len = 0;
+				while (s + j + len < close && len < 8)
+					len++;
+				snprintf(why, why_size, "unknown element '%.*s' at position %zu",
+				         (int)len, s + j, j + 1);
+				rc = IRR_EINPUT;
+				goto done;
+			}
+			if (!is_h)
+				(*heavy)++;
+			i = (size_t)(close - s);
+		} else if (c == ']') {
+			snprintf(why, why_size, "unbalanced ']' at position %zu", i + 1);
+			rc = IRR_EINPUT;
+			goto done;
+		} else if ((c >= 'A' && c <= 'Z') || (c >= 'a' && c <= 'z')) {
+			/* Outside brackets only the organic subset may appear. */
+			if ((c == 'C' && s[i + 1] == 'l') || (c == 'B' && s[i + 1] == 'r')) {
+				i++;
+			} else if (!strchr("BCNOPSFIbcnops", c)) {
+				snprintf(why, why_size, "unknown element or stray letter '%c' at position %zu "
+				         "(other elements need brackets, e.g. [Na+])", c, i + 1);
+				rc = IRR_EINPUT;
+				goto done;
+			}
+			(*heavy)++;
+		} else if (c == '*') {
+			(*heavy)++;
+		}
+	}
+	if (depth > 0) {
+		first_open = opens[depth - 1];
+		snprintf(why, why_size, "unbalanced '(' at position %zu (branch never closed)",
+		         first_open + 1);
+		rc = IRR_EINPUT;
+	}
+done:
+	free(opens);
+	return rc;
+}
+
+/* Hybridization from the bond orders, the convention RDKit and most
+ * textbooks use for carbon: a triple bond or two double bonds is sp, one
+ * double bond or an aromatic ring sp2, otherwise sp3. A carbocation is
+ * sp2. N and O with only single bonds count as sp2 when next to a
+ * pi system (amide and aniline N, enol and phenol O: lone pair delocalised),
+ * as RDKit does. Elements beyond the second period with four or more
+ * partners (sulfone S, phosphate P) are sp3 whatever the formal bonds. */
+static void assign_hybridization(irr_molecule *m)
+{
+	int *pi = calloc(m->natoms ? m->natoms : 1, sizeof *pi);
+	int *triple = calloc(m->natoms ? m->natoms : 1, sizeof *triple);
+	if (!pi || !triple) {
+		free(pi);
+		free(triple);
+		return; /* hybridization stays 0 (unknown) */
+	}
+	for (size_t k = 0; k < m->nbonds; k++) {
+		const irr_bond *b = &m->bonds[k];
+		int inc = b->order == 2 ? 1 : b->order == 3 ? 2 : 0;
+		pi[b->a] += inc;
+		pi[b->b] += inc;
+		if (b->order == 3) {
+			triple[b->a] = 1;
+			triple[b->b] = 1;
+		}
+	}
+	for (size_t i = 0; i < m->natoms; i++) {
+		irr_atom *a = &m->atoms[i];
+		int z = a->element, partners = a->degree + a->h_count;
+		int hyb;
+		if (z == 0 || (z > 2 && z != 5 && z != 6 && z != 7 && z != 8 && z != 9 &&
+		               z != 14 && z != 15 && z != 16 && z != 17 && z != 33 &&
+		               z != 34 && z != 35 && z != 53)) {
+			hyb = 0; /* metals and the rest: no useful convention */
+		} else if (partners == 0 && z != 6) {
+			hyb = 0;
+		} else if (z > 10 && partners >= 4) {
+			hyb = 3;
+		} else if (triple[i] || pi[i] >= 2) {
+			hyb = (z > 10 && !triple[i]) ? 2 : 1;
+		} else if (pi[i] == 1 || a->aromatic) {
+			hyb = 2;
+		} else if (z == 6 && a->charge > 0 && partners == 3) {
+			hyb = 2;
+		} else {
+			hyb = 3;
+		}
+		a->hybridization = hyb;
+	}
+	/* Lone pairs next to a pi system (second pass: needs the first). */
+	for (size_t i = 0; i < m->natoms; i++) {
+		irr_atom *a = &m->atoms[i];
+		if ((a->element != 7 && a->element != 8) || a->hybridization != 3 || pi[i] ||
+		    a->charge > 0)
+			continue;
+		for (size_t e = m->nbr_start[i]; e < m->nbr_start[i + 1]; e++) {
+			const irr_bond *b = &m->bonds[m->nbr_bonds[e]];
+			int o = b->a == (int)i ? b->b : b->a;
+			int h = m->atoms[o].hybridization;
+			if ((h == 1 || h == 2) && (pi[o] || m->atoms[o].aromatic)) {
+				a->hybridization = 2;
+				break;
+			}
+		}
+	}
+	free(pi);
+	free(triple);
+}
+
+static int build_neighbours(irr_molecule *m)
+{
+	m->nbr_start = calloc(m->natoms + 1, sizeof *m->nbr_start);
+	m->nbr_bonds = calloc(m->nbonds ? 2 * m->nbonds : 1, sizeof *m->nbr_bonds);
+	size_t *fill = calloc(m->natoms + 1, sizeof *fill);
+	if (!m->nbr_start || !m->nbr_bonds || !fill) {
+		free(fill);
+		return IRR_ENOMEM;
+	}
+	for (size_t k = 0; k < m->nbonds; k++) {
+		m->nbr_start[m->bonds[k].a + 1]++;
+		m->nbr_start[m->bonds[k].b + 1]++;
+	}
+	for (size_t i = 0; i < m->natoms; i++)
+		m->nbr_start[i + 1] += m->nbr_start[i];
+	for (size_t k = 0; k < m->nbonds; k++) {
+		int a = m->bonds[k].a, b = m->bonds[k].b;
+		m->nbr_bonds[m->nbr_start[a] + fill[a]++] = (int)k;
+		m->nbr_bonds[m->nbr_start[b] + fill[b]++] = (int)k;
+	}
+	free(fill);
+	return IRR_OK;
+}
+
+/* Connected components by breadth-first search with an explicit queue,
+ * numbered in order of their first atom. */
+static int assign_components(irr_molecule *m)
+{
+	int *queue = malloc((m->natoms ? m->natoms : 1) * sizeof *queue);
+	if (!queue)
+		return IRR_ENOMEM;
+	for (size_t i = 0; i < m->natoms; i++)
+		m->atoms[i].component = -1;
+	int comp = 0;
+	for (size_t s = 0; s < m->natoms; s++) {
+		if (m->atoms[s].component >= 0)
+			continue;
+		size_t head = 0, tail = 0;
+		queue[tail++] = (int)s;
+		m->atoms[s].component = comp;
+		while (head < tail) {
+			int i = queue[head++];
+			for (size_t e = m->nbr_start[i]; e < m->nbr_start[i + 1]; e++) {
+				const irr_bond *b = &m->bonds[m->nbr_bonds[e]];
+				int o = b->a == i ? b->b : b->a;
+				if (m->atoms[o].component < 0) {
+					m->atoms[o].component = comp;
+					queue[tail++] = o;
+				}
+			}
+		}
+		comp++;
+	}
+	m->ncomponents = comp;
+	free(queue);
+	return IRR_OK;
+}
+
+static void assign_ring_sizes(irr_molecule *m)
+{
+	for (size_t r = 0; r < m->nrings; r++) {
+		int size = (int)(m->ring_start[r + 1] - m->ring_start[r]);
+		for (size_t k = m->ring_start[r]; k < m->ring_start[r + 1]; k++) {
+			irr_atom *a = &m->atoms[m->ring_atoms[k]];
+			if (a->ring_size == 0 || size < a->ring_size)
+				a->ring_size = size;
+		}
+	}
+}
+
+/* Hill order: C, then H, then the rest alphabetically; without carbon,
+ * everything alphabetically. Stray hydrogens (H2, [H+]) are included. */
+static int build_formula(irr_molecule *m, int stray_h)
+{
+	long count[130] = {0};
+	long hydrogens = stray_h;
+	for (size_t i = 0; i < m->natoms; i++) {
+		int z = m->atoms[i].element;
+		if (z > 0 && z < N_ELEMENTS)
+			count[z]++;
+		hydrogens += m->atoms[i].h_count;
+	}
+	count[1] += hydrogens;
+	size_t size = 16 * (N_ELEMENTS + 1);
+	char *out = malloc(size), *p = out;
+	if (!out)
+		return IRR_ENOMEM;
+	*p = '\0';
+	int order[130], n = 0;
+	int has_c = count[6] > 0;
+	if (has_c) {
+		order[n++] = 6;
+		if (count[1])
+			order[n++] = 1;
+	}
+	/* Remaining symbols in alphabetical order (selection over the table). */
+	int used[130] = {0};
+	for (int k = 0; k < n; k++)
+		used[order[k]] = 1;
+	for (;;) {
+		int best = -1;
+		for (int z = 1; z < N_ELEMENTS; z++)
+			if (count[z] && !used[z] &&
+			    (best < 0 || strcmp(element_symbols[z], element_symbols[best]) < 0))
+				best = z;
+		if (best < 0)
+			break;
+		used[best] = 1;
+		order[n++] = best;
+	}
+	for (int k = 0; k < n; k++) {
+		int z = order[k];
+		p += count[z] == 1 ? sprintf(p, "%s", element_symbols[z])
+		                   : sprintf(p, "%s%ld", element_symbols[z], count[z]);
+	}
+	m->formula = out;
+	return IRR_OK;
+}
+
+int irr_molecule_from_smiles(irr_molecule **out, const char *smiles, const char *name,
+                             irr_error *err)
+{
+	char why[512] = "";
+	irr_molecule *m = NULL;
+	irr_obshim_graph g;
+	irr_obshim_mol *ob = NULL;
+	const char *file = name ? name : "SMILES";
+	size_t heavy = 0, len;
+	int rc;
+
+	memset(&g, 0, sizeof g);
+	*out = NULL;
+	if (!smiles)
+		return irr_error_set(err, IRR_EINPUT, file, 0, "no SMILES given");
+	/* Surrounding blanks (a trailing newline from a file) are not part of it. */
+	while (*smiles == ' ' || *smiles == '\t' || *smiles == '\n' || *smiles == '\r')
+		smiles++;
+	len = strlen(smiles);
+	while (len && (smiles[len - 1] == ' ' || smiles[len - 1] == '\t' ||
+	               smiles[len - 1] == '\n' || smiles[len - 1] == '\r'))
+		len--;
+	if (len == 0)
+		return irr_error_set(err, IRR_EINPUT, file, 0, "empty SMILES");
+	if (len > MAX_SMILES_CHARS)
+		return irr_error_set(err, IRR_ELIMIT, file, 0,
+		                     "SMILES of %zu characters is longer than the limit of %zu",
+		                     len, MAX_SMILES_CHARS);
+
+	m = calloc(1, sizeof *m);
+	if (!m || !(m->smiles = malloc(len + 1))) {
+		rc = irr_error_set(err, IRR_ENOMEM, file, 0, "out of memory");
+		goto fail;
+	}
+	memcpy(m->smiles, smiles, len);
+	m->smiles[len] = '\0';
+
+	rc = check_syntax(m->smiles, &heavy, why, sizeof why);
+	if (rc == IRR_OK && heavy > IRR_MAX_HEAVY_ATOMS) {
+		snprintf(why, sizeof why, "about %zu heavy atoms, more than the limit of %d",
+		         heavy, IRR_MAX_HEAVY_ATOMS);
+		rc = IRR_ELIMIT;
+	}
+	if (rc == IRR_OK)
+		rc = irr_obshim__read_smiles(m->smiles, IRR_MAX_HEAVY_ATOMS, &ob, &g, why, sizeof why);
+	if (rc != IRR_OK) {
+		const char *what = rc == IRR_ELIMIT ? "SMILES too large:" : "cannot read";
+		if (rc == IRR_ENOMEM)
+			snprintf(why, sizeof why, "out of memory");
+		rc = irr_error_set(err, rc, file, 0, "%s \"%.60s%s\": %s", what, m->smiles,
+		                   len > 60 ? "..." : "", why[0] ? why : "unknown reason");
+		goto fail;
+	}
+	if (g.natoms == 0) {
+		rc = irr_error_set(err, IRR_EINPUT, file, 0,
+		                   "SMILES \"%.60s\" has no heavy atom", m->smiles);
+		goto fail;
+	}
+	m->ob = ob;
+	ob = NULL;
+	m->natoms = g.natoms;
+	m->nbonds = g.nbonds;
+	m->nrings = g.nrings;
+	m->atoms = g.atoms;
+	m->bonds = g.bonds;
+	m->ring_start = g.ring_start;
+	m->ring_atoms = g.ring_atoms;
+	m->mass = g.mass;
+	g.atoms = NULL;
+	g.bonds = NULL;
+	g.ring_start = NULL;
+	g.ring_atoms = NULL;
+
+	if (build_neighbours(m) != IRR_OK || assign_components(m) != IRR_OK ||
+	    build_formula(m, g.stray_h) != IRR_OK) {
+		rc = irr_error_set(err, IRR_ENOMEM, file, 0, "out of memory");
+		goto fail;
+	}
+	assign_ring_sizes(m);
+	assign_hybridization(m);
+	irr_obshim__graph_release(&g);
+	*out = m;
+	return IRR_OK;
+
+fail:
+	irr_obshim__graph_release(&g);
+	irr_obshim__mol_free(ob);
+	irr_molecule_free(m);
+	return rc;
+}
+
+void irr_molecule_free(irr_molecule *m)
+{
+	if (!m)
+		return;
+	free(m->smiles);
+	free(m->atoms);
+	free(m->bonds);
+	free(m->nbr_start);
+	free(m->nbr_bonds);
+	free(m->ring_start);
+	free(m->ring_atoms);
+	free(m->formula);
+	irr_obshim__mol_free(m->ob);
+	free(m);
+}
+
+size_t irr_molecule_atom_count(const irr_molecule *m)
+{
+	return m ? m->natoms : 0;
+}
+
+const irr_atom *irr_molecule_atom(const irr_molecule *m, size_t i)
+{
+	return m && i < m->natoms ? &m->atoms[i] : NULL;
+}
+
+size_t irr_molecule_bond_count(const irr_molecule *m)
+{
+	return m ? m->nbonds : 0;
+}
+
+const irr_bond *irr_molecule_bond(const irr_molecule *m, size_t i)
+{
+	return m && i < m->nbonds ? &m->bonds[i] : NULL;
+}
+
+size_t irr_molecule_neighbours(const irr_molecule *m, size_t i, const int **bonds)
+{
+	if (!m || i >= m->natoms) {
+		if (bonds)
+			*bonds = NULL;
+		return 0;
+	}
+	if (bonds)
+		*bonds = m->nbr_bonds + m->nbr_start[i];
+	return m->nbr_start[i + 1] - m->nbr_start[i];
+}
+
+size_t irr_molecule_ring_count(const irr_molecule *m)
+{
+	return m ? m->nrings : 0;
+}
+
+size_t irr_molecule_ring(const irr_molecule *m, size_t r, const int **atoms)
+{
+	if (!m || r >= m->nrings) {
+		if (atoms)
+			*atoms = NULL;
+		return 0;
+	}
+	if (atoms)
+		*atoms = m->ring_atoms + m->ring_start[r];
+	return m->ring_start[r + 1] - m->ring_start[r];
+}
+
+int irr_molecule_components(const irr_molecule *m)
+{
+	return m ? m->ncomponents : 0;
+}
+
+const char *irr_molecule_smiles(const irr_molecule *m)
+{
+	return m ? m->smiles : "";
+}
+
+const char *irr_molecule_formula(const irr_molecule *m)
+{
+	return m && m->formula ? m->formula : "";
+}
+
+double irr_molecule_mass(const irr_molecule *m)
+{
+	return m ? m->mass : 0.0;
+}
+
+int irr_smarts_compile(irr_smarts **out, const char *smarts, irr_error *err)
+{
+	char why[512] = "";
+	irr_smarts *p;
+	int rc;
+	*out = NULL;
+	if (!smarts || !*smarts)
+		return irr_error_set(err, IRR_EINPUT, "", 0, "empty SMARTS");
+	p = calloc(1, sizeof *p);
+	if (!p)
+		return irr_error_set(err, IRR_ENOMEM, "", 0, "out of memory");
+	rc = irr_obshim__smarts_compile(smarts, &p->p, why, sizeof why);
+	if (rc != IRR_OK) {
+		free(p);
+		if (rc == IRR_ENOMEM)
+			return irr_error_set(err, rc, "", 0, "out of memory");
+		return irr_error_set(err, rc, "", 0, "bad SMARTS \"%.80s\": %s", smarts, why);
+	}
+	*out = p;
+	return IRR_OK;
+}
+
+void irr_smarts_free(irr_smarts *p)
+{
+	if (!p)
+		return;
+	irr_obshim__smarts_free(p->p);
+	free(p);
+}
+
+int irr_smarts_match(const irr_smarts *p, const irr_molecule *m, int **atoms, int *width)
+{
+	if (atoms)
+		*atoms = NULL;
+	if (width)
+		*width = 0;
+	if (!p || !m)
+		return IRR_EINPUT;
+	return irr_obshim__smarts_match(p->p, m->ob, atoms, width);
+}
