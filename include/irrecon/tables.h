@@ -52,8 +52,8 @@ typedef struct irr_table_group {
 
 typedef struct irr_tables irr_tables;
 
-/* Loads every *.json under `dir` (NULL: $IRRECON_TABLES, else the compiled-in
- * data directory) and then the `n_extra` user files, which may add groups or
+/* Loads every *.json under `dir` (NULL: irr_tables_default_dir(); "": no
+ * folder, only the extra files), sorted by name, and then the `n_extra` user files, which may add groups or
  * replace groups of the same id. A broken file is IRR_EINPUT naming the file
  * and line. Caller owns *out. */
 int irr_tables_load(irr_tables **out, const char *dir,
@@ -65,7 +65,9 @@ const char *irr_tables_default_dir(void);
 
 size_t irr_tables_group_count(const irr_tables *t);
 const irr_table_group *irr_tables_group(const irr_tables *t, size_t i);
-/* Groups whose key is `key` (several tables may refine one key). */
+/* Groups whose key is `key` (several tables may refine one key), in load
+ * order, stored into found[0..max-1] (borrowed). Returns the number stored;
+ * with found == NULL, the number there are. */
 size_t irr_tables_find_key(const irr_tables *t, const char *key,
                            const irr_table_group **found, size_t max);
 const irr_table_group *irr_tables_find_id(const irr_tables *t, const char *id);
