@@ -11,6 +11,7 @@
 #include <string.h>
 #include <strings.h>
 #include <sys/stat.h>
+#include <time.h>
 
 #include <cJSON.h>
 
@@ -842,9 +843,24 @@ static int other_list(irr_check *c, irr_other_kind kind, const irr_strlist *l,
 	return IRR_OK;
 }
 
+static double now_s(void)
+{
+	struct timespec ts;
+	clock_gettime(CLOCK_MONOTONIC, &ts);
+	return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
+}
+
 int irr_request_run(irr_check **out, const irr_request *r, const irr_tables *t,
                     irr_error *err)
 {
+	return irr_request__run_timed(out, r, t, NULL, err);
+}
+
+int irr_request__run_timed(irr_check **out, const irr_request *r,
+                           const irr_tables *t, double *read_seconds,
+                           irr_error *err)
+{
+	double t0 = read_seconds ? now_s() : 0;
 	irr_check *c = NULL;
 	irr_check_options o;
 	irr_spectrum *s = NULL;
@@ -890,6 +906,8 @@ int irr_request_run(irr_check **out, const irr_request *r, const irr_tables *t,
 	}
 	if (rc != IRR_OK)
 		goto done;
+	if (read_seconds)
+		*read_seconds = now_s() - t0;
 
 	if ((rc = irr_check_create(&c, t, err)) != IRR_OK)
 		goto done;

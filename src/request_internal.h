@@ -52,4 +52,9 @@ int irr_request__slurp(char **out, size_t *len, const char *path,
 /* The folder part of a path ("." when none). Caller frees *out. */
 int irr_request__dirname(char **out, const char *path);
 
+/* irr_request_run that also reports the seconds spent reading the input. */
+int irr_request__run_timed(irr_check **out, const irr_request *r,
+                           const irr_tables *t, double *read_seconds,
+                           irr_error *err);
+
 #endif

@@ -13,6 +13,7 @@
 #include <stddef.h>
 #include "irrecon/common.h"
 #include "irrecon/request.h"
+#include "irrecon/reconcile.h"
 
 #ifdef __cplusplus
 extern "C" {
@@ -86,6 +87,38 @@ int irr_manifest_resolve_path(char **out, const irr_manifest *m, long line,
 int irr_manifest_sample_request(irr_request **out, const irr_manifest *m,
                                 size_t i, const irr_request *base,
                                 int allow_outside, irr_error *err);
+
+/* Seconds spent per stage, summed over the samples run (for make bench and
+ * `batch --timing`). read: reading and parsing the spectrum file; peaks,
+ * perceive (SMILES parsing included), predict, reconcile: as the check
+ * reports them; write: building the JSON line; total: the whole run of the
+ * sample after its row was resolved. */
+typedef struct irr_batch_timing {
+	double read, peaks, perceive, predict, reconcile, write, total;
+	size_t samples;
+} irr_batch_timing;
+
+#define IRR_BATCH_ERROR_SCHEMA "irrecon.error/1"
+
+/* Runs sample i: builds its request (over `base`), runs the check with
+ * tables `t` and renders the result as one line of compact JSON (schema
+ * "irrecon.check/1", the same object as `check --json`), without a newline.
+ * On success *json_out is malloc'd (caller frees) and *verdict (may be NULL)
+ * is set. On failure *json_out is NULL and err says why, naming the file and
+ * line (a row's own faults name the manifest and the row's line). `timing`
+ * (may be NULL) is added to. */
+int irr_batch_run_sample(char **json_out, irr_verdict *verdict,
+                         const irr_manifest *m, size_t i,
+                         const irr_request *base, const irr_tables *t,
+                         int allow_outside, irr_batch_timing *timing,
+                         irr_error *err);
+
+/* The error record of sample i as one line of compact JSON:
+ * {"schema":"irrecon.error/1","sample":ID|null,"manifest":PATH,
+ *  "manifest_line":N,"error":{"message":..,"file":..|null,"line":N|null}}.
+ * Caller owns *out (free()). Returns IRR_OK or IRR_ENOMEM. */
+int irr_batch_error_record(char **out, const irr_manifest *m, size_t i,
+                           const irr_error *e);
 
 #ifdef __cplusplus
 }
