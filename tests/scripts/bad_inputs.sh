@@ -1,0 +1,174 @@
+#!/usr/bin/env bash
+# The bad-input corpus: runs every case in tests/data/bad/ (see the README
+# there for the case format) and checks that the program fails the way a
+# user can act on: the expected exit status (2), exactly one line on stderr
+# reading "irrecon: FILE[:LINE]: message" with the file (and line) named and
+# the expected words in the message, nothing on stdout, no crash or sanitizer
+# report, within the time limit, and a pre-existing output file (@OUT@) left
+# byte-for-byte as it was with no temporary file beside it.
+#
+#   env: IRRECON  the program (default $BUILD/irrecon, BUILD default build)
+#        CASES    only the cases whose names match this grep -E pattern
+#        KEEP=1   keep the per-case temporary folders (printed on failure)
+set -u
+cd "$(dirname "$0")/../.."
+ROOT=$PWD
+BUILD=${BUILD:-build}
+IRRECON=${IRRECON:-$BUILD/irrecon}
+DIR=tests/data/bad
+MIN_CASES=60
+
+if [ ! -x "$IRRECON" ]; then
+	echo "bad_inputs: $IRRECON is not built (run make first)"
+	exit 1
+fi
+IRRECON=$(cd "$(dirname "$IRRECON")" && pwd)/$(basename "$IRRECON")
+
+pass=0; fail=0; failed=()
+SENTINEL="irrecon bad-input corpus: this file existed before the run and must stay unchanged."
+
+# Prints the one data file of a case: <case>.<ext>, whatever ext is.
+case_file() {
+	local c=$1 f
+	for f in "$DIR/$c".*; do
+		case $f in *.expect) continue ;; esac
+		[ -e "$f" ] && { echo "$f"; return; }
+	done
+}
+
+# Replaces the placeholders in one field: @CASE@ the case's data file,
+# @BAD@ the corpus folder, @TMP@ the case's private folder, @OUT@ the
+# pre-existing output file in it, @ROOT@ the repository.
+subst() {
+	local s=$1
+	s=${s//@CASE@/$CASEFILE}
+	s=${s//@BAD@/$DIR}
+	s=${s//@TMP@/$TMP}
+	s=${s//@OUT@/$TMP/out/existing.out}
+	s=${s//@ROOT@/$ROOT}
+	printf '%s' "$s"
+}
+
+check_case() {  # case name; sets WHY on failure
+	local c=$1 exp=$DIR/$1.expect
+	local run="" status="" where="" fragment="" stdin="" timeout_s=20 stdout_rule=empty
+	local setups=() key val
+	WHY=""
+	while IFS= read -r line || [ -n "$line" ]; do
+		case $line in ''|'#'*) continue ;; esac
+		key=${line%%:*}
+		val=${line#*:}
+		val=${val# }
+		case $key in
+		run) run=$val ;;
+		status) status=$val ;;
+		where) where=$val ;;
+		error) fragment=$val ;;
+		stdin) stdin=$val ;;
+		timeout) timeout_s=$val ;;
+		stdout) stdout_rule=$val ;;
+		setup) setups+=("$val") ;;
+		*) WHY="unknown field '$key' in $exp"; return 1 ;;
+		esac
+	done <"$exp"
+	if [ -z "$run" ] || [ -z "$status" ] || [ -z "$where" ] || [ -z "$fragment" ]; then
+		WHY="$exp needs run:, status:, where: and error:"
+		return 1
+	fi
+	CASEFILE=$(case_file "$c")
+	TMP=$(mktemp -d "${TMPDIR:-/tmp}/irrecon-bad.XXXXXX")
+	mkdir -p "$TMP/out"
+	printf '%s\n' "$SENTINEL" >"$TMP/out/existing.out"
+	local s
+	for s in "${setups[@]}"; do
+		local -a p
+		read -r -a p <<<"$(subst "$s")"
+		set -- "${p[@]}"
+		case $1 in
+		sparse)  # sparse PATH SIZE: a file of SIZE bytes that takes no disk
+			truncate -s "$3" "$2" || { WHY="setup failed: $s"; return 1; } ;;
+		repeat)  # repeat PATH TEXT COUNT [PREFIX] [SUFFIX]: TEXT COUNT times on one line
+			{ printf '%s' "${5:-}"; for ((i = 0; i < $4; i++)); do printf '%s' "$3"; done; printf '%s\n' "${6:-}"; } >"$2" ;;
+		copy)    # copy FROM TO
+			cp "$2" "$3" || { WHY="setup failed: $s"; return 1; } ;;
+		*) WHY="unknown setup '$1' in $exp"; return 1 ;;
+		esac
+	done
+	# Arguments are split as xargs does: quotes '...' and "..." group, no
+	# expansion of any kind (SMILES hold '#', '$', '(' and '*').
+	local -a argv=()
+	mapfile -d '' argv < <(subst "$run" | xargs printf '%s\0')
+	local in=/dev/null
+	[ -n "$stdin" ] && in=$(subst "$stdin")
+	timeout -k 2 "$timeout_s" "$IRRECON" "${argv[@]}" <"$in" >"$TMP/stdout" 2>"$TMP/stderr"
+	local rc=$?
+	local err nlines
+	err=$(head -c 4000 "$TMP/stderr")
+	nlines=$(wc -l <"$TMP/stderr")
+	if [ $rc -eq 124 ] || [ $rc -eq 137 ]; then
+		WHY="did not finish within ${timeout_s}s"
+	elif [ $rc -ge 128 ]; then
+		WHY="crashed (exit $rc): $(head -n 3 "$TMP/stderr")"
+	elif grep -qE 'AddressSanitizer|LeakSanitizer|runtime error:|UndefinedBehaviorSanitizer' "$TMP/stderr"; then
+		WHY="sanitizer report: $(grep -m 2 -E 'ERROR|runtime error|SUMMARY' "$TMP/stderr")"
+	elif [ "$rc" != "$status" ]; then
+		WHY="exit $rc, expected $status; stderr: $(head -n 2 "$TMP/stderr")"
+	elif [ "$nlines" -ne 1 ] || [ -z "$err" ]; then
+		WHY="stderr has $nlines lines, expected exactly one: $(head -n 4 "$TMP/stderr" | tr '\n' '|')"
+	else
+		local want prefix got
+		want=$(subst "$where")
+		got=${err#irrecon: }
+		if [ "$got" = "$err" ]; then
+			WHY="error does not start with 'irrecon: ': $err"
+		elif [ "${want%:\*}" != "$want" ]; then
+			prefix=${want%:\*}
+			if [ "${got#"$prefix":}" = "$got" ] || ! [[ ${got#"$prefix":} =~ ^[1-9][0-9]*:\  ]]; then
+				WHY="error should name '$prefix:LINE:': $err"
+			fi
+		elif [ "${got#"$want":}" = "$got" ]; then
+			WHY="error should name '$want:': $err"
+		fi
+		if [ -z "$WHY" ] && ! grep -qiF -- "$fragment" "$TMP/stderr"; then
+			WHY="error lacks '$fragment': $err"
+		fi
+	fi
+	if [ -z "$WHY" ] && [ "$stdout_rule" = empty ] && [ -s "$TMP/stdout" ]; then
+		WHY="wrote to stdout on error: $(head -c 200 "$TMP/stdout")"
+	fi
+	if [ -z "$WHY" ]; then
+		if [ "$(cat "$TMP/out/existing.out")" != "$SENTINEL" ]; then
+			WHY="the existing output file was changed"
+		elif [ "$(find "$TMP/out" -mindepth 1 | wc -l)" -ne 1 ]; then
+			WHY="files left beside the output: $(find "$TMP/out" -mindepth 1 -not -name existing.out -printf '%f ')"
+		fi
+	fi
+	if [ -n "$WHY" ] && [ -n "${KEEP:-}" ]; then
+		WHY="$WHY [kept $TMP]"
+	else
+		rm -rf "$TMP"
+	fi
+	[ -z "$WHY" ]
+}
+
+n=0
+for exp in "$DIR"/*.expect; do
+	c=$(basename "$exp" .expect)
+	if [ -n "${CASES:-}" ] && ! grep -qE -- "$CASES" <<<"$c"; then
+		continue
+	fi
+	n=$((n + 1))
+	if check_case "$c"; then
+		pass=$((pass + 1))
+	else
+		fail=$((fail + 1))
+		failed+=("$c")
+		echo "FAIL $c: $WHY"
+	fi
+done
+if [ -z "${CASES:-}" ] && [ "$n" -lt $MIN_CASES ]; then
+	echo "bad_inputs: only $n cases in $DIR (at least $MIN_CASES wanted)"
+	fail=$((fail + 1))
+fi
+echo "bad inputs: $pass passed, $fail failed (program: $IRRECON)"
+[ "$fail" -eq 0 ]
