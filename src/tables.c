@@ -629,6 +629,9 @@ static int parse_group(ctx *c, const cJSON *jg, irr_table_group *g)
 	}
 	if (!g->key == !g->smarts)
 		return fail(c, "give exactly one of 'key' (a perception key) and 'smarts'");
+	/* A SMARTS group is reported under its id, which must not read as a key. */
+	if (g->smarts && in_list(g->id, known_keys))
+		return fail(c, "a SMARTS group's id must not be a perception key; choose another id");
 	if ((rc = get_string(c, jg, "group", "source", 0, &gsource)))
 		return rc;
 	const cJSON *bands = cJSON_GetObjectItemCaseSensitive(jg, "bands");

@@ -42,6 +42,12 @@ typedef struct irr_prediction irr_prediction;
 int irr_predict(irr_prediction **out, const irr_inventory *inv,
                 const irr_tables *t, const irr_predict_options *o,
                 irr_error *err);
+/* The same from an array of group entries (e.g. copied from an inventory,
+ * or built by hand in tests and by programs with their own perception).
+ * Caller owns *out; `groups` is not kept. */
+int irr_predict_groups(irr_prediction **out, const irr_group *groups, size_t ngroups,
+                       const irr_tables *t, const irr_predict_options *o,
+                       irr_error *err);
 void irr_prediction_free(irr_prediction *p);
 size_t irr_prediction_count(const irr_prediction *p);
 const irr_band *irr_prediction_band(const irr_prediction *p, size_t i);
