@@ -15,7 +15,8 @@ VERSION  := 0.1.0
 
 # Debian packages the build and the tests need; `deps` installs what is missing.
 DEB_BUILD := g++ make pkg-config libopenbabel-dev libcjson-dev libcmocka-dev
-DEB_TEST  := python3 python3-rdkit python3-scipy libxml2-utils valgrind clang nodejs npm chromium python3-pil
+DEB_TEST  := python3 python3-rdkit python3-scipy libxml2-utils valgrind clang nodejs npm chromium python3-pil \
+             libclang-rt-dev locales
 
 PKGS      := openbabel-3 libcjson
 OPT       ?= -O2
@@ -40,7 +41,7 @@ CLI_OBJ  := $(CLI_C:src/cli/%.c=$(BUILD)/obj/cli/%.o)
 UNIT_C   := $(sort $(wildcard tests/unit/test_*.c))
 UNIT_BIN := $(UNIT_C:tests/unit/%.c=$(BUILD)/tests/%)
 
-.PHONY: all deps demo test test-unit test-scripts bench install clean
+.PHONY: all deps demo test test-unit test-scripts bench install clean fuzz
 .DEFAULT_GOAL := all
 
 all: $(BUILD)/.deps-build $(BUILD)/libirrecon.a $(BUILD)/libirrecon.so $(BUILD)/irrecon
@@ -87,7 +88,12 @@ test-unit: all $(UNIT_BIN)
 test-scripts: all $(BUILD)/.deps-test
 	@BUILD=$(BUILD) ONLY=scripts ./tests/run-all
 
+# Each libFuzzer target (fuzz/fuzz_*.c) for FUZZ_SECONDS; see tools/fuzz.
+FUZZ_SECONDS ?= 60
+fuzz: $(BUILD)/.deps-test
+	./tools/fuzz -t $(FUZZ_SECONDS)
+
 clean:
-	rm -rf $(BUILD)
+	rm -rf $(BUILD) build-san build-fuzz
 
 -include $(LIB_OBJ:.o=.d) $(CLI_OBJ:.o=.d)
