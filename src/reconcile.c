@@ -1,0 +1,1581 @@
+/* reconcile.c: the main job. Matches the observed peaks of a spectrum to the
+ * bands expected for a proposed structure by minimum-cost assignment
+ * (Hungarian method, Kuhn 1955 / Munkres 1957; src/assign.c), attributes
+ * the remaining bands to named starting materials, reagents, solvents, the
+ * atmosphere or moisture, works out marker bands of the other substances,
+ * and decides a verdict with a score and reasons.
+ *
+ * The rules (thresholds, costs, weights) are documented in
+ * docs/check-result-schema.md, section "How the verdict is reached"; the
+ * constants below carry the same names. */
+#include "irrecon/reconcile.h"
+#include "assign.h"
+#include "solvents.h"
+
+#include <ctype.h>
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+
+/* ---- Tunable rules (documented in docs/check-result-schema.md) ---- */
+#define SIGNIFICANT_REL   0.05  /* peaks below this fraction of the strongest are minor */
+#define MISSING_COST      1.5   /* cost of leaving an expected band without a peak */
+#define MARGIN_FRAC       0.25  /* a peak may sit this fraction of the window outside it */
+#define MARGIN_MAX        15.0  /* ... but at most this many cm-1 */
+#define MARGIN_MIN        5.0
+#define FINGERPRINT_FACTOR 0.5  /* weight of expected bands below 1500 cm-1 */
+#define FINGERPRINT_PEAK  0.4   /* weight of unexplained peaks below 1500 cm-1 */
+#define DECISIVE_WEIGHT   0.5   /* table weight from which a missing band decides */
+#define FINGERPRINT_DECISIVE_WEIGHT 0.8
+#define FINGERPRINT_DECISIVE_REL 0.8 /* an unexplained fingerprint peak this strong decides */
+#define MAX_CANDIDATES    4
+#define NOISY_FRAC        0.08  /* noise above this fraction of the strongest peak */
+
+static const char CAUTION_EVIDENCE[] =
+	"A verdict is evidence, never proof of identity or purity: do not release "
+	"material on it alone; follow your lab's approved procedures and local "
+	"safety rules.";
+
+/* ---- Names ---- */
+
+const char *irr_verdict_name(irr_verdict v)
+{
+	static const char *const n[] = {"consistent", "consistent_impure", "inconsistent", "inconclusive"};
+	return (unsigned)v < 4 ? n[v] : "unknown";
+}
+const char *irr_other_kind_name(irr_other_kind k)
+{
+	static const char *const n[] = {"starting_material", "reagent", "solvent"};
+	return (unsigned)k < 3 ? n[k] : "unknown";
+}
+const char *irr_source_kind_name(irr_source_kind k)
+{
+	static const char *const n[] = {"starting_material", "reagent", "solvent", "atmosphere", "water", "none"};
+	return (unsigned)k < 6 ? n[k] : "unknown";
+}
+const char *irr_band_status_name(irr_band_status s)
+{
+	static const char *const n[] = {"found", "saturated", "missing", "unobservable"};
+	return (unsigned)s < 4 ? n[s] : "unknown";
+}
+const char *irr_peak_status_name(irr_peak_status s)
+{
+	static const char *const n[] = {"explained", "attributed", "unexplained"};
+	return (unsigned)s < 3 ? n[s] : "unknown";
+}
+const char *irr_presence_name(irr_presence p)
+{
+	static const char *const n[] = {"absent", "likely_present", "cannot_tell"};
+	return (unsigned)p < 3 ? n[p] : "unknown";
+}
+
+/* ---- Objects ---- */
+
+/* The measured input, shared read-only between a check and its clones. */
+typedef struct shared_input {
+	int refs;
+	irr_spectrum *spectrum;
+	irr_peaklist *peaks;
+	double peaks_seconds;
+} shared_input;
+
+typedef struct shared_lib {
+	int refs;
+	irr_solvent_library *lib;
+} shared_lib;
+
+/* One band another substance may show (predicted or from the library). */
+typedef struct other_band {
+	const char *label;
+	double low, high, typical;
+	irr_intensity intensity;
+	irr_shape shape;
+	double weight;
+	int overtone;
+} other_band;
+
+typedef struct other_in {
+	irr_other_kind kind;
+	char *given;
+	char *smiles;
+	const irr_solvent *solvent;  /* borrowed from the library */
+	irr_molecule *mol;
+	irr_inventory *inv;
+	irr_prediction *pred;        /* made in run */
+	other_band *bands;
+	size_t nbands;
+	irr_marker *markers;
+	size_t nmarkers;
+} other_in;
+
+struct irr_check {
+	const irr_tables *t;
+	irr_check_options opt;
+	char *sample_id, *input_name, *input_sha256, *solvents_file;
+
+	shared_input *in;
+	shared_lib *sl;
+
+	char *smiles;
+	irr_molecule *mol;
+	irr_inventory *inv;
+
+	other_in *others;
+	size_t nothers;
+
+	/* result */
+	int ran;
+	irr_prediction *pred;
+	irr_expected *exp;
+	size_t nexp;
+	irr_observed *obs;
+	size_t nobs;
+	const char **cands;          /* candidate names, all peaks, borrowed from t */
+	irr_other *ores;
+	irr_reason *reasons;
+	size_t nreasons, capreasons;
+	char **cautions;             /* owned copies */
+	size_t ncautions, capcautions;
+	irr_verdict verdict;
+	double score;
+	irr_check_timing timing;
+};
+
+static double now_seconds(void)
+{
+	struct timespec ts;
+	clock_gettime(CLOCK_MONOTONIC, &ts);
+	return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
+}
+
+static char *dupstr(const char *s)
+{
+	return s ? strdup(s) : NULL;
+}
+
+void irr_check_options_init(irr_check_options *o)
+{
+	if (!o)
+		return;
+	memset(o, 0, sizeof *o);
+	o->phase = IRR_PHASE_CONDENSED;
+	o->sampling = IRR_SAMPLING_ATR;
+	irr_peak_options_init(&o->peaks);
+}
+
+static void input_release(shared_input *in)
+{
+	if (in && --in->refs == 0) {
+		irr_peaklist_free(in->peaks);
+		irr_spectrum_free(in->spectrum);
+		free(in);
+	}
+}
+
+static void lib_release(shared_lib *sl)
+{
+	if (sl && --sl->refs == 0) {
+		irr_solvents_free(sl->lib);
+		free(sl);
+	}
+}
+
+static void clear_result(irr_check *c)
+{
+	irr_prediction_free(c->pred);
+	c->pred = NULL;
+	free(c->exp);
+	c->exp = NULL;
+	c->nexp = 0;
+	free(c->obs);
+	c->obs = NULL;
+	c->nobs = 0;
+	free(c->cands);
+	c->cands = NULL;
+	free(c->ores);
+	c->ores = NULL;
+	for (size_t i = 0; i < c->nreasons; i++)
+		free((char *)c->reasons[i].text);
+	free(c->reasons);
+	c->reasons = NULL;
+	c->nreasons = c->capreasons = 0;
+	for (size_t i = 0; i < c->ncautions; i++)
+		free(c->cautions[i]);
+	free(c->cautions);
+	c->cautions = NULL;
+	c->ncautions = c->capcautions = 0;
+	for (size_t i = 0; i < c->nothers; i++) {
+		other_in *o = &c->others[i];
+		irr_prediction_free(o->pred);
+		o->pred = NULL;
+		free(o->bands);
+		o->bands = NULL;
+		o->nbands = 0;
+		free(o->markers);
+		o->markers = NULL;
+		o->nmarkers = 0;
+	}
+	c->ran = 0;
+}
+
+int irr_check_create(irr_check **out, const irr_tables *t, irr_error *err)
+{
+	irr_check *c;
+	*out = NULL;
+	if (!t)
+		return irr_error_set(err, IRR_EINPUT, "", 0, "no group tables given");
+	c = calloc(1, sizeof *c);
+	if (!c)
+		return irr_error_set(err, IRR_ENOMEM, "", 0, "out of memory");
+	c->t = t;
+	irr_check_options_init(&c->opt);
+	*out = c;
+	return IRR_OK;
+}
+
+void irr_check_free(irr_check *c)
+{
+	if (!c)
+		return;
+	clear_result(c);
+	for (size_t i = 0; i < c->nothers; i++) {
+		free(c->others[i].given);
+		free(c->others[i].smiles);
+		irr_inventory_free(c->others[i].inv);
+		irr_molecule_free(c->others[i].mol);
+	}
+	free(c->others);
+	irr_inventory_free(c->inv);
+	irr_molecule_free(c->mol);
+	free(c->smiles);
+	input_release(c->in);
+	lib_release(c->sl);
+	free(c->sample_id);
+	free(c->input_name);
+	free(c->input_sha256);
+	free(c->solvents_file);
+	free(c);
+}
+
+void irr_check_set_options(irr_check *c, const irr_check_options *o)
+{
+	char *a, *b, *d, *e;
+	if (!c || !o)
+		return;
+	/* Copy first: o's strings may be our own (set_options(c, get_options(c))). */
+	a = dupstr(o->sample_id);
+	b = dupstr(o->input_name);
+	d = dupstr(o->input_sha256);
+	e = dupstr(o->solvents_file);
+	free(c->sample_id);
+	free(c->input_name);
+	free(c->input_sha256);
+	if ((c->solvents_file || e) && (!e || !c->solvents_file || strcmp(e, c->solvents_file))) {
+		lib_release(c->sl);
+		c->sl = NULL;
+	}
+	free(c->solvents_file);
+	c->opt = *o;
+	c->opt.sample_id = c->sample_id = a;
+	c->opt.input_name = c->input_name = b;
+	c->opt.input_sha256 = c->input_sha256 = d;
+	c->opt.solvents_file = c->solvents_file = e;
+	c->ran = 0;
+}
+
+const irr_check_options *irr_check_get_options(const irr_check *c)
+{
+	return c ? &c->opt : NULL;
+}
+
+static int ensure_lib(irr_check *c, irr_error *err)
+{
+	int rc;
+	if (c->sl)
+		return IRR_OK;
+	c->sl = calloc(1, sizeof *c->sl);
+	if (!c->sl)
+		return irr_error_set(err, IRR_ENOMEM, "", 0, "out of memory");
+	c->sl->refs = 1;
+	rc = irr_solvents_load(&c->sl->lib, c->solvents_file, err);
+	if (rc) {
+		free(c->sl);
+		c->sl = NULL;
+	}
+	return rc;
+}
+
+int irr_check_set_structure_named(irr_check *c, const char *smiles,
+                                  const char *name, irr_error *err)
+{
+	irr_molecule *m = NULL;
+	irr_inventory *inv = NULL;
+	char *s;
+	double t0 = now_seconds();
+	int rc;
+	if (!smiles || !*smiles)
+		return irr_error_set(err, IRR_EINPUT, name ? name : "SMILES", 0, "empty structure");
+	if ((rc = irr_molecule_from_smiles(&m, smiles, name ? name : "SMILES", err)))
+		return rc;
+	if ((rc = irr_perceive(&inv, m, c->t, err))) {
+		irr_molecule_free(m);
+		return rc;
+	}
+	if (!(s = strdup(smiles))) {
+		irr_inventory_free(inv);
+		irr_molecule_free(m);
+		return irr_error_set(err, IRR_ENOMEM, "", 0, "out of memory");
+	}
+	clear_result(c);
+	irr_inventory_free(c->inv);
+	irr_molecule_free(c->mol);
+	free(c->smiles);
+	c->mol = m;
+	c->inv = inv;
+	c->smiles = s;
+	c->timing.perceive = now_seconds() - t0;
+	return IRR_OK;
+}
+
+int irr_check_set_structure(irr_check *c, const char *smiles, irr_error *err)
+{
+	return irr_check_set_structure_named(c, smiles, NULL, err);
+}
+
+/* SMILES never hold spaces; library names often do. A string that names a
+ * library entry is taken as that entry even when it would parse as SMILES
+ * too ("CO" is methanol either way; "DMF" would not parse). */
+int irr_check_add_other(irr_check *c, irr_other_kind kind, const char *what,
+                        irr_error *err)
+{
+	other_in o;
+	other_in *grown;
+	int rc;
+	if (!c || !what || !*what)
+		return irr_error_set(err, IRR_EINPUT, "", 0, "empty %s",
+		                     irr_other_kind_name(kind));
+	if ((unsigned)kind > IRR_OTHER_SOLVENT)
+		return irr_error_set(err, IRR_EINPUT, "", 0, "unknown kind of substance");
+	memset(&o, 0, sizeof o);
+	o.kind = kind;
+	if ((rc = ensure_lib(c, err)))
+		return rc;
+	o.solvent = irr_solvents_find(c->sl->lib, what);
+	o.smiles = strdup(o.solvent ? o.solvent->smiles : what);
+	o.given = strdup(what);
+	if (!o.smiles || !o.given) {
+		rc = irr_error_set(err, IRR_ENOMEM, "", 0, "out of memory");
+		goto fail;
+	}
+	rc = irr_molecule_from_smiles(&o.mol, o.smiles, "SMILES", err);
+	if (rc) {
+		if (!o.solvent && err)
+			irr_error_set(err, IRR_EINPUT, irr_other_kind_name(kind), 0,
+			              "'%s' is neither a name in the solvent library nor valid SMILES (%s)",
+			              what, err->message);
+		goto fail;
+	}
+	if ((rc = irr_perceive(&o.inv, o.mol, c->t, err)))
+		goto fail;
+	grown = realloc(c->others, (c->nothers + 1) * sizeof *grown);
+	if (!grown) {
+		rc = irr_error_set(err, IRR_ENOMEM, "", 0, "out of memory");
+		goto fail;
+	}
+	clear_result(c);
+	c->others = grown;
+	c->others[c->nothers++] = o;
+	return IRR_OK;
+fail:
+	irr_inventory_free(o.inv);
+	irr_molecule_free(o.mol);
+	free(o.smiles);
+	free(o.given);
+	return rc;
+}
+
+static int new_input(irr_check *c, irr_error *err)
+{
+	shared_input *in = calloc(1, sizeof *in);
+	if (!in)
+		return irr_error_set(err, IRR_ENOMEM, "", 0, "out of memory");
+	in->refs = 1;
+	clear_result(c);
+	input_release(c->in);
+	c->in = in;
+	return IRR_OK;
+}
+
+int irr_check_set_spectrum(irr_check *c, irr_spectrum *s, irr_error *err)
+{
+	irr_peaklist *pl = NULL;
+	double t0 = now_seconds();
+	int rc;
+	if (!s)
+		return irr_error_set(err, IRR_EINPUT, "", 0, "no spectrum given");
+	if ((rc = irr_spectrum_normalise(s, err)) ||
+	    (rc = irr_peaks_pick(&pl, s, &c->opt.peaks, err)) ||
+	    (rc = new_input(c, err))) {
+		irr_peaklist_free(pl);
+		irr_spectrum_free(s);
+		return rc;
+	}
+	c->in->spectrum = s;
+	c->in->peaks = pl;
+	c->in->peaks_seconds = now_seconds() - t0;
+	return IRR_OK;
+}
+
+int irr_check_set_peaks(irr_check *c, irr_peaklist *pl, irr_error *err)
+{
+	int rc;
+	if (!pl)
+		return irr_error_set(err, IRR_EINPUT, "", 0, "no peak list given");
+	if ((rc = new_input(c, err))) {
+		irr_peaklist_free(pl);
+		return rc;
+	}
+	c->in->peaks = pl;
+	return IRR_OK;
+}
+
+int irr_check_clone_inputs(irr_check **out, const irr_check *src, irr_error *err)
+{
+	irr_check *c;
+	int rc;
+	*out = NULL;
+	if ((rc = irr_check_create(&c, src->t, err)))
+		return rc;
+	irr_check_set_options(c, &src->opt);
+	if (src->in) {
+		c->in = src->in;
+		c->in->refs++;
+	}
+	if (src->sl) {
+		c->sl = src->sl;
+		c->sl->refs++;
+	}
+	for (size_t i = 0; i < src->nothers; i++)
+		if ((rc = irr_check_add_other(c, src->others[i].kind, src->others[i].given, err))) {
+			irr_check_free(c);
+			return rc;
+		}
+	*out = c;
+	return IRR_OK;
+}
+
+/* ---- Helpers of the run ---- */
+
+static int add_reason(irr_check *c, const char *code, int decisive, long e, long o,
+                      const char *fmt, ...)
+#if defined(__GNUC__)
+	__attribute__((format(printf, 6, 7)))
+#endif
+	;
+static int add_reason(irr_check *c, const char *code, int decisive, long e, long o,
+                      const char *fmt, ...)
+{
+	char buf[600];
+	va_list ap;
+	char *t;
+	if (c->nreasons == c->capreasons) {
+		size_t n = c->capreasons ? 2 * c->capreasons : 16;
+		irr_reason *r = realloc(c->reasons, n * sizeof *r);
+		if (!r)
+			return IRR_ENOMEM;
+		c->reasons = r, c->capreasons = n;
+	}
+	va_start(ap, fmt);
+	vsnprintf(buf, sizeof buf, fmt, ap);
+	va_end(ap);
+	if (!(t = strdup(buf)))
+		return IRR_ENOMEM;
+	c->reasons[c->nreasons].code = code;
+	c->reasons[c->nreasons].text = t;
+	c->reasons[c->nreasons].decisive = decisive;
+	c->reasons[c->nreasons].expected = e;
+	c->reasons[c->nreasons].observed = o;
+	c->nreasons++;
+	return IRR_OK;
+}
+
+static int add_caution(irr_check *c, const char *text)
+{
+	for (size_t i = 0; i < c->ncautions; i++)
+		if (!strcmp(c->cautions[i], text))
+			return IRR_OK;
+	if (c->ncautions == c->capcautions) {
+		size_t n = c->capcautions ? 2 * c->capcautions : 8;
+		char **r = realloc(c->cautions, n * sizeof *r);
+		if (!r)
+			return IRR_ENOMEM;
+		c->cautions = r, c->capcautions = n;
+	}
+	if (!(c->cautions[c->ncautions] = strdup(text)))
+		return IRR_ENOMEM;
+	c->ncautions++;
+	return IRR_OK;
+}
+
+/* Numeric class of an intensity (weak 1, medium 2, strong 3). */
+static int iclass(irr_intensity v)
+{
+	switch (v) {
+	case IRR_INT_WEAK: return 1;
+	case IRR_INT_MEDIUM: return 2;
+	case IRR_INT_STRONG: return 3;
+	default: return 0;
+	}
+}
+
+static int peak_class(const irr_peak *p)
+{
+	if (p->saturated)
+		return 3;
+	int k = iclass(p->intensity);
+	return k ? k : 1;
+}
+
+static double intensity_factor(irr_intensity v)
+{
+	switch (v) {
+	case IRR_INT_STRONG: return 1.0;
+	case IRR_INT_MEDIUM: return 0.7;
+	case IRR_INT_WEAK: return 0.3;
+	default: return 0.5;
+	}
+}
+
+static int is_broad_shape(irr_shape s)
+{
+	return s == IRR_SHAPE_BROAD || s == IRR_SHAPE_VERY_BROAD;
+}
+
+/* "C-H stretch (CH3, asym)" -> compares "c-h stretch": the kind of a band
+ * for the sharing rule. */
+static int same_kind(const char *a, const char *b)
+{
+	size_t la = strcspn(a, "(,"), lb = strcspn(b, "(,");
+	while (la && a[la - 1] == ' ')
+		la--;
+	while (lb && b[lb - 1] == ' ')
+		lb--;
+	return la == lb && !strncasecmp(a, b, la);
+}
+
+static double margin_of(double low, double high)
+{
+	double m = MARGIN_FRAC * (high - low);
+	return m < MARGIN_MIN ? MARGIN_MIN : m > MARGIN_MAX ? MARGIN_MAX : m;
+}
+
+static int overlaps(double a0, double a1, double b0, double b1)
+{
+	return a0 <= b1 && b0 <= a1;
+}
+
+/* Cost of explaining peak p by band b (without the band weight), or
+ * IRR_ASSIGN_FORBIDDEN. Position inside the window, intensity class and
+ * shape each add; see the schema document for the numbers. */
+static double pair_cost(const irr_band *b, const irr_peak *p, const irr_check *c)
+{
+	double lo = b->low, hi = b->high, m = margin_of(lo, hi);
+	double pos = p->position, cost = 0.0;
+	double half = 0.5 * (hi - lo);
+	int ec = iclass(b->intensity), oc = peak_class(p);
+	if (half < 5.0)
+		half = 5.0;
+	if (p->saturated) {
+		/* A saturated peak stands for its whole range. */
+		if (!overlaps(lo - m, hi + m, p->low, p->high))
+			return IRR_ASSIGN_FORBIDDEN;
+		pos = p->position < lo ? (p->high < lo ? p->high : lo)
+		    : p->position > hi ? (p->low > hi ? p->low : hi) : p->position;
+	}
+	if (pos < lo - m || pos > hi + m)
+		return IRR_ASSIGN_FORBIDDEN;
+	{
+		double d = fabs(pos - b->typical) / half;
+		if (d > 1.0)
+			d = 1.0;
+		cost += 0.5 * d * d;
+		if (pos < lo)
+			cost += 0.6 * (lo - pos) / m;
+		else if (pos > hi)
+			cost += 0.6 * (pos - hi) / m;
+	}
+	/* ATR weakens bands above 3000 cm-1 (and less so down to 2500): allow
+	 * one class weaker there. Common practice. */
+	if (c->opt.sampling == IRR_SAMPLING_ATR && b->typical > 2500 && ec > 1)
+		ec--;
+	if (ec) {
+		if (ec == 3 && oc == 1)
+			return IRR_ASSIGN_FORBIDDEN;  /* a strong band is never a trace */
+		cost += 0.3 * abs(ec - oc);
+	}
+	/* Shape: a broad O-H is not a sharp N-H. */
+	if (!p->saturated) {
+		if (is_broad_shape(b->shape)) {
+			if (!p->broad) {
+				if (p->fwhm > 0 && b->shape == IRR_SHAPE_VERY_BROAD &&
+				    p->fwhm < 0.5 * c->opt.peaks.broad_cm)
+					return IRR_ASSIGN_FORBIDDEN;
+				cost += p->fwhm > 0 ? 0.6 : 0.2;
+			}
+		} else if (p->broad) {
+			cost += p->fwhm > 3.0 * c->opt.peaks.broad_cm ? 0.9 : 0.4;
+		}
+	}
+	return cost;
+}
+
+static double band_weight_eff(const irr_band *b)
+{
+	double w = b->weight * intensity_factor(b->intensity);
+	if (irr_region_of(b->typical) == 4)
+		w *= FINGERPRINT_FACTOR;
+	if (b->overtone)
+		w *= 0.2;
+	return w;
+}
+
+static double peak_weight(const irr_peak *p)
+{
+	double w = p->saturated ? 1.0 : p->rel_height;
+	if (w > 1.0)
+		w = 1.0;
+	if (p->position < 1500)
+		w *= FINGERPRINT_PEAK;
+	return w;
+}
+
+static int range_saturated(const irr_peaklist *pl, double lo, double hi)
+{
+	size_t n = irr_peaklist_saturated_count(pl);
+	for (size_t i = 0; i < n; i++) {
+		double a, b;
+		irr_peaklist_saturated_range(pl, i, &a, &b);
+		if (overlaps(lo, hi, a, b))
+			return 1;
+	}
+	return 0;
+}
+
+static const char *fmtw(char *buf, size_t n, double v)
+{
+	irr_format_double(buf, n, v, 0);
+	return buf;
+}
+
+/* Candidate groups for a peak, looked up backwards in the tables: groups
+ * with a band whose window holds the position, nearest typical first,
+ * classes too weak for the peak last. */
+typedef struct cand {
+	const char *name;
+	double score;
+} cand;
+
+static int cand_cmp(const void *a, const void *b)
+{
+	const cand *x = a, *y = b;
+	if (x->score != y->score)
+		return x->score < y->score ? -1 : 1;
+	return strcmp(x->name, y->name);
+}
+
+static size_t find_candidates(const irr_tables *t, const irr_peak *p, const char **out)
+{
+	cand best[64];
+	size_t nb = 0, ng = irr_tables_group_count(t), nout = 0;
+	int oc = peak_class(p);
+	for (size_t g = 0; g < ng; g++) {
+		const irr_table_group *tg = irr_tables_group(t, g);
+		double gbest = 1e9;
+		for (size_t k = 0; k < tg->nbands; k++) {
+			const irr_table_band *tb = &tg->bands[k];
+			double half = 0.5 * (tb->high - tb->low), s;
+			if (tb->overtone || p->position < tb->low - 3 || p->position > tb->high + 3)
+				continue;
+			if (half < 5)
+				half = 5;
+			s = fabs(p->position - tb->typical) / half;
+			/* Strong peaks are rarely a weak table band; broad ones rarely
+			 * a sharp band. */
+			if (iclass(tb->intensity) && iclass(tb->intensity) + 1 < oc)
+				s += 1.0;
+			if (p->broad && !is_broad_shape(tb->shape))
+				s += 0.5;
+			if (!p->broad && p->fwhm > 0 && tb->shape == IRR_SHAPE_VERY_BROAD)
+				s += 0.8;
+			s -= 0.3 * tb->weight;
+			if (s < gbest)
+				gbest = s;
+		}
+		if (gbest < 1e9) {
+			/* One entry per trade name (several table ids may share it). */
+			size_t i;
+			for (i = 0; i < nb; i++)
+				if (!strcmp(best[i].name, tg->name))
+					break;
+			if (i < nb) {
+				if (gbest < best[i].score)
+					best[i].score = gbest;
+			} else if (nb < sizeof best / sizeof best[0]) {
+				best[nb].name = tg->name;
+				best[nb].score = gbest;
+				nb++;
+			}
+		}
+	}
+	qsort(best, nb, sizeof best[0], cand_cmp);
+	for (size_t i = 0; i < nb && nout < MAX_CANDIDATES; i++)
+		out[nout++] = best[i].name;
+	return nout;
+}
+
+/* Bands of another substance: the same predictor plus, for library
+ * entries, the tabulated strong bands (which come first: they are measured
+ * positions of that very compound). */
+static int other_bands(irr_check *c, other_in *o, const irr_predict_options *po,
+                       irr_error *err)
+{
+	size_t np, nl, n = 0;
+	int rc = irr_predict(&o->pred, o->inv, c->t, po, err);
+	if (rc)
+		return rc;
+	np = irr_prediction_count(o->pred);
+	nl = o->solvent ? o->solvent->nbands : 0;
+	o->bands = calloc(np + nl + 1, sizeof *o->bands);
+	if (!o->bands)
+		return irr_error_set(err, IRR_ENOMEM, "", 0, "out of memory");
+	for (size_t i = 0; i < nl; i++) {
+		const irr_solvent_band *sb = &o->solvent->bands[i];
+		other_band *b = &o->bands[n++];
+		b->label = sb->label;
+		b->low = sb->low, b->high = sb->high, b->typical = sb->typical;
+		b->intensity = sb->intensity;
+		b->shape = sb->shape;
+		b->weight = 1.0;
+	}
+	for (size_t i = 0; i < np; i++) {
+		const irr_band *pb = irr_prediction_band(o->pred, i);
+		other_band *b = &o->bands[n++];
+		b->label = pb->label;
+		b->low = pb->low, b->high = pb->high, b->typical = pb->typical;
+		b->intensity = pb->intensity;
+		b->shape = pb->shape;
+		b->weight = pb->weight;
+		b->overtone = pb->overtone;
+	}
+	o->nbands = n;
+	return IRR_OK;
+}
+
+static int peak_in(const irr_peak *p, double lo, double hi, double margin)
+{
+	if (p->saturated)
+		return overlaps(lo - margin, hi + margin, p->low, p->high);
+	return p->position >= lo - margin && p->position <= hi + margin;
+}
+
+/* ---- The run ---- */
+
+int irr_check_run(irr_check *c, irr_error *err)
+{
+	const irr_peaklist *pl;
+	irr_predict_options po;
+	double rlo, rhi, t0 = now_seconds(), t1;
+	size_t np, ne, nrows = 0, *rows = NULL;
+	double *cost = NULL;
+	int *assign = NULL, rc;
+	size_t *order = NULL;
+	char w1[32], w2[32], w3[32];
+	double found_w = 0, missing_w = 0, unexpl_w = 0;
+	int decisive = 0, impure = 0;
+
+	if (!c)
+		return IRR_EINPUT;
+	if (!c->mol)
+		return irr_error_set(err, IRR_EINPUT, "", 0, "no structure given");
+	if (!c->in || !c->in->peaks)
+		return irr_error_set(err, IRR_EINPUT, "", 0, "no spectrum or peak list given");
+	if ((rc = ensure_lib(c, err)))
+		return rc;
+	clear_result(c);
+	pl = c->in->peaks;
+	irr_peaklist_range(pl, &rlo, &rhi);
+	np = irr_peaklist_count(pl);
+
+	irr_predict_options_init(&po);
+	po.phase = c->opt.phase;
+	po.sampling = c->opt.sampling;
+	if ((rc = irr_predict(&c->pred, c->inv, c->t, &po, err)))
+		goto done;
+	t1 = now_seconds();
+	c->timing.predict = t1 - t0;
+	t0 = t1;
+	c->timing.peaks = c->in->peaks_seconds;
+	ne = irr_prediction_count(c->pred);
+
+	c->exp = calloc(ne + 1, sizeof *c->exp);
+	c->obs = calloc(np + 1, sizeof *c->obs);
+	c->cands = calloc(np * MAX_CANDIDATES + 1, sizeof *c->cands);
+	c->ores = calloc(c->nothers + 1, sizeof *c->ores);
+	rows = calloc(ne + 1, sizeof *rows);
+	if (!c->exp || !c->obs || !c->cands || !c->ores || !rows)
+		goto nomem;
+	c->nexp = ne;
+	c->nobs = np;
+
+	for (size_t j = 0; j < np; j++) {
+		irr_observed *o = &c->obs[j];
+		o->peak = irr_peaklist_get(pl, j);
+		o->significant = o->peak->saturated || o->peak->rel_height >= SIGNIFICANT_REL;
+		o->status = IRR_PEAK_UNEXPLAINED;
+		o->expected = -1;
+		o->weight = peak_weight(o->peak);
+		o->attributed_kind = IRR_SOURCE_NONE;
+		o->candidates = c->cands + j * MAX_CANDIDATES;
+	}
+
+	/* 1. Observability: outside the measured range, or under saturation. */
+	for (size_t i = 0; i < ne; i++) {
+		irr_expected *e = &c->exp[i];
+		const irr_band *b = irr_prediction_band(c->pred, i);
+		double in_lo = b->low > rlo ? b->low : rlo, in_hi = b->high < rhi ? b->high : rhi;
+		e->band = b;
+		e->peak = -1;
+		e->weight = band_weight_eff(b);
+		if (in_hi <= in_lo || b->typical < rlo - 1 || b->typical > rhi + 1) {
+			e->status = IRR_BAND_UNOBSERVABLE;
+			e->note = "outside the measured range";
+		} else if (range_saturated(pl, b->low, b->high)) {
+			e->status = IRR_BAND_SATURATED;
+			e->note = "window meets a saturated region";
+		} else {
+			e->status = IRR_BAND_MISSING;
+			rows[nrows++] = i;
+		}
+	}
+
+	/* 2. Optimal assignment: rows are the observable bands, columns the
+	 * peaks plus one "missing" column per row. Costs are scaled by the
+	 * band's importance so that a contested peak goes to the band whose
+	 * absence would cost more. */
+	if (nrows) {
+		size_t m = np + nrows;
+		cost = malloc(nrows * m * sizeof *cost);
+		assign = malloc(nrows * sizeof *assign);
+		if (!cost || !assign)
+			goto nomem;
+		for (size_t r = 0; r < nrows; r++) {
+			const irr_band *b = c->exp[rows[r]].band;
+			double scale = 0.2 + b->weight;
+			double *row = cost + r * m;
+			for (size_t j = 0; j < np; j++) {
+				double k = pair_cost(b, c->obs[j].peak, c);
+				row[j] = k >= IRR_ASSIGN_FORBIDDEN ? k : k * scale;
+			}
+			for (size_t k = 0; k < nrows; k++)
+				row[np + k] = k == r ? MISSING_COST * scale : IRR_ASSIGN_FORBIDDEN;
+		}
+		if ((rc = irr_assign__solve(cost, nrows, m, assign, NULL)))
+			goto done;
+		for (size_t r = 0; r < nrows; r++) {
+			size_t j = (size_t)assign[r];
+			if (j < np) {
+				irr_expected *e = &c->exp[rows[r]];
+				e->status = IRR_BAND_FOUND;
+				e->peak = (long)j;
+				e->deviation = c->obs[j].peak->position - e->band->typical;
+				c->obs[j].status = IRR_PEAK_EXPLAINED;
+				c->obs[j].expected = (long)rows[r];
+			}
+		}
+	}
+
+	/* 3. Sharing: a band left without a peak may share the peak of a band
+	 * of the same kind from another group (CH3 and CH2 stretches, two
+	 * carbonyls), when that peak would have suited it too. Two bands of one
+	 * group never share: a primary amine needs both N-H stretches. */
+	for (size_t r = 0; r < nrows; r++) {
+		irr_expected *e = &c->exp[rows[r]];
+		double best = MISSING_COST;
+		long bj = -1;
+		if (e->status != IRR_BAND_MISSING)
+			continue;
+		for (size_t j = 0; j < np; j++) {
+			const irr_expected *o;
+			double k;
+			if (c->obs[j].expected < 0)
+				continue;
+			o = &c->exp[c->obs[j].expected];
+			if (o->band->group_index == e->band->group_index ||
+			    !same_kind(o->band->label, e->band->label))
+				continue;
+			k = pair_cost(e->band, c->obs[j].peak, c);
+			if (k < best)
+				best = k, bj = (long)j;
+		}
+		if (bj >= 0) {
+			e->status = IRR_BAND_FOUND;
+			e->peak = bj;
+			e->shared = 1;
+			e->deviation = c->obs[bj].peak->position - e->band->typical;
+		}
+	}
+
+	/* 4. Hidden: a weak or medium band under a stronger band of another
+	 * group cannot be seen; strong bands are never hidden this way. */
+	for (size_t i = 0; i < ne; i++) {
+		irr_expected *e = &c->exp[i];
+		int ec = iclass(e->band->intensity);
+		if (e->status != IRR_BAND_MISSING || ec >= 3)
+			continue;
+		for (size_t j = 0; j < np; j++) {
+			const irr_peak *p = c->obs[j].peak;
+			double lo = p->low, hi = p->high;
+			if (c->obs[j].expected >= 0 &&
+			    c->exp[c->obs[j].expected].band->group_index == e->band->group_index)
+				continue;
+			if (hi <= lo) {
+				double h = p->fwhm > 0 ? 0.5 * p->fwhm : 8.0;
+				lo = p->position - h, hi = p->position + h;
+			}
+			if (peak_class(p) > (ec ? ec : 1) && overlaps(lo, hi, e->band->low, e->band->high) &&
+			    (p->broad || (e->band->typical >= lo && e->band->typical <= hi))) {
+				e->status = IRR_BAND_UNOBSERVABLE;
+				e->note = "hidden under a stronger band of another group";
+				break;
+			}
+		}
+	}
+
+	/* 5. Peaks not assigned: extra structure of the product's own bands. A
+	 * second peak inside a window is the product's when it is weak, in the
+	 * fingerprint or C-H stretching region, under a broad band, or the
+	 * group occurs several times; a medium or strong second peak in the
+	 * diagnostic region is not (one N-H band for a secondary amine). */
+	for (size_t j = 0; j < np; j++) {
+		irr_observed *o = &c->obs[j];
+		const irr_peak *p = o->peak;
+		long best = -1;
+		double bestd = 1e9;
+		if (o->status == IRR_PEAK_EXPLAINED)
+			continue;
+		for (size_t i = 0; i < ne; i++) {
+			const irr_expected *e = &c->exp[i];
+			const irr_band *b = e->band;
+			double d;
+			int ok;
+			if (e->status == IRR_BAND_UNOBSERVABLE && e->note && e->note[0] == 'o')
+				continue;
+			if (!peak_in(p, b->low, b->high, 0.5 * margin_of(b->low, b->high)))
+				continue;
+			ok = peak_class(p) == 1 || p->position < 1500 ||
+			     (p->position > 2800 && p->position < 3120 && !p->broad) ||
+			     is_broad_shape(b->shape) || b->group_count > 1;
+			if (!ok && e->status == IRR_BAND_FOUND && e->peak >= 0) {
+				const irr_peak *q = c->obs[e->peak].peak;
+				ok = !q->saturated ? p->height < 0.5 * q->height : 1;
+			}
+			if (!ok && e->status == IRR_BAND_SATURATED)
+				ok = 1;
+			if (!ok)
+				continue;
+			d = fabs(p->position - b->typical);
+			if (d < bestd)
+				bestd = d, best = (long)i;
+		}
+		if (best >= 0) {
+			o->status = IRR_PEAK_EXPLAINED;
+			o->expected = best;
+		}
+	}
+
+	/* 6. Attribution: atmosphere, then the named substances, then a little
+	 * moisture. */
+	{
+		const irr_solvents__air *air = irr_solvents__atmosphere(c->sl->lib);
+		int vapour_lines[8] = {0};
+		for (size_t j = 0; j < np; j++) {
+			irr_observed *o = &c->obs[j];
+			const irr_peak *p = o->peak;
+			if (o->status != IRR_PEAK_UNEXPLAINED)
+				continue;
+			for (size_t k = 0; k < air->nco2; k++)
+				if (peak_in(p, air->co2[k].low, air->co2[k].high, 0) && !p->broad) {
+					o->status = IRR_PEAK_ATTRIBUTED;
+					o->attributed_kind = IRR_SOURCE_ATMOSPHERE;
+					o->attributed_name = "carbon dioxide";
+					o->attributed_smiles = "O=C=O";
+					o->attributed_label = air->co2[k].label;
+					break;
+				}
+			if (o->status != IRR_PEAK_UNEXPLAINED)
+				continue;
+			for (size_t k = 0; k < air->nclusters && k < 8; k++)
+				if (p->position >= air->clusters[k][0] && p->position <= air->clusters[k][1] &&
+				    !p->broad && !p->saturated && p->intensity != IRR_INT_STRONG &&
+				    (p->fwhm <= 0 || p->fwhm <= air->vapour_max_fwhm))
+					vapour_lines[k]++;
+		}
+		for (size_t j = 0; j < np; j++) {
+			irr_observed *o = &c->obs[j];
+			const irr_peak *p = o->peak;
+			if (o->status != IRR_PEAK_UNEXPLAINED)
+				continue;
+			for (size_t k = 0; k < air->nclusters && k < 8; k++)
+				if (vapour_lines[k] >= air->vapour_min_lines &&
+				    p->position >= air->clusters[k][0] && p->position <= air->clusters[k][1] &&
+				    !p->broad && !p->saturated && p->intensity != IRR_INT_STRONG &&
+				    (p->fwhm <= 0 || p->fwhm <= air->vapour_max_fwhm)) {
+					o->status = IRR_PEAK_ATTRIBUTED;
+					o->attributed_kind = IRR_SOURCE_ATMOSPHERE;
+					o->attributed_name = "water vapour";
+					o->attributed_smiles = "O";
+					o->attributed_label = "rotation-vibration line";
+					break;
+				}
+		}
+	}
+	for (size_t k = 0; k < c->nothers; k++)
+		if ((rc = other_bands(c, &c->others[k], &po, err)))
+			goto done;
+	for (size_t j = 0; j < np; j++) {
+		irr_observed *o = &c->obs[j];
+		const irr_peak *p = o->peak;
+		double bestd = 1e9;
+		if (o->status != IRR_PEAK_UNEXPLAINED)
+			continue;
+		for (size_t k = 0; k < c->nothers; k++) {
+			other_in *oi = &c->others[k];
+			for (size_t b = 0; b < oi->nbands; b++) {
+				const other_band *ob = &oi->bands[b];
+				double half = 0.5 * (ob->high - ob->low), d;
+				if (!peak_in(p, ob->low, ob->high, 0.5 * margin_of(ob->low, ob->high)))
+					continue;
+				if (ob->shape == IRR_SHAPE_VERY_BROAD && !p->broad && p->fwhm > 0 &&
+				    p->fwhm < 0.5 * c->opt.peaks.broad_cm)
+					continue;
+				d = fabs(p->position - ob->typical) / (half < 5 ? 5 : half) + 0.01 * (double)k;
+				if (d < bestd) {
+					bestd = d;
+					o->status = IRR_PEAK_ATTRIBUTED;
+					o->attributed_kind = (irr_source_kind)oi->kind;
+					o->attributed_name = oi->solvent ? oi->solvent->name : oi->given;
+					o->attributed_smiles = oi->smiles;
+					o->attributed_label = ob->label;
+				}
+			}
+		}
+	}
+	{
+		/* Moisture: a weak broad O-H band with (or without) a weak H-O-H
+		 * bend, both weak against the product's own bands. */
+		const irr_solvents__air *air = irr_solvents__atmosphere(c->sl->lib);
+		long oh = -1;
+		for (size_t j = 0; j < np && air->nmoist; j++) {
+			const irr_peak *p = c->obs[j].peak;
+			if (c->obs[j].status == IRR_PEAK_UNEXPLAINED && p->broad && !p->saturated &&
+			    p->rel_height <= air->moist_max_rel &&
+			    peak_in(p, air->moist[0].low, air->moist[0].high, 0))
+				oh = (long)j;
+		}
+		if (oh >= 0) {
+			for (size_t j = 0; j < np; j++) {
+				irr_observed *o = &c->obs[j];
+				const irr_peak *p = o->peak;
+				for (size_t k = 0; k < air->nmoist; k++)
+					if ((long)j == oh ||
+					    (k > 0 && o->status == IRR_PEAK_UNEXPLAINED && !p->saturated &&
+					     p->rel_height <= air->moist_max_rel &&
+					     peak_in(p, air->moist[k].low, air->moist[k].high, 0))) {
+						o->status = IRR_PEAK_ATTRIBUTED;
+						o->attributed_kind = IRR_SOURCE_WATER;
+						o->attributed_name = "water (moisture)";
+						o->attributed_smiles = "O";
+						o->attributed_label = air->moist[(long)j == oh ? 0 : k].label;
+						break;
+					}
+			}
+		}
+	}
+
+	/* 7. Candidates for what is still unexplained. */
+	for (size_t j = 0; j < np; j++)
+		if (c->obs[j].status == IRR_PEAK_UNEXPLAINED && c->obs[j].significant)
+			c->obs[j].ncandidates = find_candidates(c->t, c->obs[j].peak,
+			                                        c->cands + j * MAX_CANDIDATES);
+
+	/* 8. Marker bands of the other substances. */
+	{
+		double heights[256];
+		size_t nh = 0;
+		double ref = 0;
+		for (size_t i = 0; i < ne && nh < 256; i++)
+			if (c->exp[i].status == IRR_BAND_FOUND && !c->exp[i].shared &&
+			    iclass(c->exp[i].band->intensity) >= 2)
+				heights[nh++] = c->obs[c->exp[i].peak].peak->height;
+		/* median of the product's found medium and strong bands */
+		for (size_t a = 1; a < nh; a++)
+			for (size_t b = a; b > 0 && heights[b - 1] > heights[b]; b--) {
+				double t = heights[b];
+				heights[b] = heights[b - 1], heights[b - 1] = t;
+			}
+		ref = nh ? heights[nh / 2] : 0;
+		for (size_t k = 0; k < c->nothers; k++) {
+			other_in *oi = &c->others[k];
+			irr_other *r = &c->ores[k];
+			size_t found = 0, observable = 0;
+			oi->markers = calloc(oi->nbands + 1, sizeof *oi->markers);
+			if (!oi->markers)
+				goto nomem;
+			for (size_t b = 0; b < oi->nbands; b++) {
+				const other_band *ob = &oi->bands[b];
+				irr_marker *mk;
+				int dup = 0;
+				if (ob->overtone || iclass(ob->intensity) < 2 || ob->weight < 0.3)
+					continue;
+				for (size_t i = 0; i < ne && !dup; i++)
+					if (overlaps(ob->low, ob->high, c->exp[i].band->low, c->exp[i].band->high))
+						dup = 1;
+				/* A library band and a predicted band for one vibration:
+				 * keep the first (the library's, measured). */
+				for (size_t q = 0; q < oi->nmarkers && !dup; q++)
+					if (overlaps(ob->low, ob->high, oi->markers[q].low, oi->markers[q].high))
+						dup = 1;
+				if (dup)
+					continue;
+				mk = &oi->markers[oi->nmarkers++];
+				mk->label = ob->label;
+				mk->low = ob->low, mk->high = ob->high, mk->typical = ob->typical;
+				mk->intensity = ob->intensity;
+				mk->peak = -1;
+				mk->observable = ob->high > rlo && ob->low < rhi &&
+				                 !range_saturated(pl, ob->low, ob->high);
+				if (!mk->observable)
+					continue;
+				observable++;
+				for (size_t j = 0; j < np; j++) {
+					const irr_peak *p = c->obs[j].peak;
+					if (!c->obs[j].significant || c->obs[j].status == IRR_PEAK_EXPLAINED ||
+					    !peak_in(p, ob->low, ob->high, 0.5 * margin_of(ob->low, ob->high)))
+						continue;
+					if (ob->shape == IRR_SHAPE_VERY_BROAD && !p->broad && p->fwhm > 0 &&
+					    p->fwhm < 0.5 * c->opt.peaks.broad_cm)
+						continue;
+					if (mk->peak < 0 || p->height > c->obs[mk->peak].peak->height)
+						mk->peak = (long)j;
+				}
+				if (mk->peak >= 0) {
+					irr_observed *o = &c->obs[mk->peak];
+					found++;
+					mk->rel_strength = ref > 0 ? o->peak->height / ref : 0;
+					/* The marker decides whom the band belongs to. */
+					o->status = IRR_PEAK_ATTRIBUTED;
+					o->attributed_kind = (irr_source_kind)oi->kind;
+					o->attributed_name = oi->solvent ? oi->solvent->name : oi->given;
+					o->attributed_smiles = oi->smiles;
+					o->attributed_label = ob->label;
+					o->ncandidates = 0;
+				}
+			}
+			r->kind = oi->kind;
+			r->given = oi->given;
+			r->name = oi->solvent ? oi->solvent->name : NULL;
+			r->smiles = oi->smiles;
+			r->formula = irr_molecule_formula(oi->mol);
+			r->markers = oi->markers;
+			r->nmarkers = oi->nmarkers;
+			r->presence = found ? IRR_PRESENCE_LIKELY_PRESENT
+			            : observable ? IRR_PRESENCE_ABSENT : IRR_PRESENCE_CANNOT_TELL;
+		}
+		for (size_t j = 0; j < np; j++)
+			if (c->obs[j].status == IRR_PEAK_ATTRIBUTED &&
+			    c->obs[j].attributed_kind <= IRR_SOURCE_SOLVENT)
+				for (size_t k = 0; k < c->nothers; k++)
+					if (c->obs[j].attributed_smiles == c->others[k].smiles)
+						c->ores[k].nattributed++;
+	}
+
+	/* 9. Verdict, score and reasons, most important first. */
+	{
+		double key_total = 0, key_seen = 0;
+		size_t nfound = 0, nobservable = 0, nsig = 0;
+		int moisture = 0, co2 = 0, vapour = 0;
+		/* 9a. Missing diagnostic bands decide, heaviest first. */
+		size_t no = 0;
+		order = malloc((ne + np + 1) * sizeof *order);
+		if (!order)
+			goto nomem;
+		for (size_t i = 0; i < ne; i++) {
+			const irr_expected *e = &c->exp[i];
+			const irr_band *b = e->band;
+			int key = !b->overtone && b->weight >= DECISIVE_WEIGHT && iclass(b->intensity) >= 2;
+			if (key) {
+				key_total += b->weight;
+				if (e->status != IRR_BAND_UNOBSERVABLE)
+					key_seen += b->weight;
+			}
+			if (e->status == IRR_BAND_FOUND || e->status == IRR_BAND_SATURATED) {
+				found_w += e->weight;
+				nfound++, nobservable++;
+			} else if (e->status == IRR_BAND_MISSING) {
+				missing_w += e->weight;
+				nobservable++;
+				if (key && (irr_region_of(b->typical) < 4 || b->weight >= FINGERPRINT_DECISIVE_WEIGHT))
+					order[no++] = i;
+			}
+		}
+		for (size_t a = 1; a < no; a++)
+			for (size_t b = a; b > 0 && c->exp[order[b - 1]].band->weight < c->exp[order[b]].band->weight; b--) {
+				size_t t = order[b];
+				order[b] = order[b - 1], order[b - 1] = t;
+			}
+		for (size_t a = 0; a < no; a++) {
+			const irr_band *b = c->exp[order[a]].band;
+			decisive = 1;
+			if (add_reason(c, "missing_band", 1, (long)order[a], -1,
+			               "no band for the %s %s (expected %s, %s-%s cm-1)",
+			               b->group_name, b->label, irr_intensity_name(b->intensity),
+			               fmtw(w1, sizeof w1, b->low), fmtw(w2, sizeof w2, b->high)))
+				goto nomem;
+		}
+		/* 9b. Strong unexplained bands, strongest first. */
+		no = 0;
+		for (size_t j = 0; j < np; j++) {
+			const irr_observed *o = &c->obs[j];
+			if (!o->significant)
+				continue;
+			nsig++;
+			if (o->status == IRR_PEAK_ATTRIBUTED) {
+				if (o->attributed_kind == IRR_SOURCE_WATER)
+					moisture = 1;
+				else if (o->attributed_kind == IRR_SOURCE_ATMOSPHERE)
+				{
+					if (o->attributed_smiles[1] == '=')
+						co2 = 1;
+					else
+						vapour = 1;
+				}
+				else
+					impure = 1;
+			}
+			if (o->status == IRR_PEAK_UNEXPLAINED) {
+				unexpl_w += o->weight;
+				order[no++] = j;
+			}
+		}
+		for (size_t a = 1; a < no; a++)
+			for (size_t b = a; b > 0 && c->obs[order[b - 1]].peak->rel_height < c->obs[order[b]].peak->rel_height; b--) {
+				size_t t = order[b];
+				order[b] = order[b - 1], order[b - 1] = t;
+			}
+		for (size_t pass = 0; pass < 2; pass++)
+			for (size_t a = 0; a < no; a++) {
+				const irr_observed *o = &c->obs[order[a]];
+				const irr_peak *p = o->peak;
+				char cl[200] = "";
+				int dec = p->saturated ? p->position >= 1500
+				        : (p->intensity == IRR_INT_STRONG && p->position >= 1500) ||
+				          p->rel_height >= FINGERPRINT_DECISIVE_REL;
+				if ((pass == 0) != (dec != 0))
+					continue;
+				if (pass == 1 && p->intensity == IRR_INT_WEAK)
+					continue;
+				if (o->ncandidates) {
+					size_t n = strlen(cl);
+					snprintf(cl + n, sizeof cl - n, " (could be: ");
+					for (size_t q = 0; q < o->ncandidates; q++) {
+						n = strlen(cl);
+						snprintf(cl + n, sizeof cl - n, "%s%s", q ? ", " : "", o->candidates[q]);
+					}
+					n = strlen(cl);
+					snprintf(cl + n, sizeof cl - n, ")");
+				}
+				if (dec)
+					decisive = 1;
+				if (add_reason(c, p->saturated ? "saturated_unexplained" : "unexplained_band",
+				               dec, -1, (long)order[a], "%s%s band at %s cm-1 is explained by nothing given%s",
+				               p->saturated ? "saturated (strong)" : irr_intensity_name(p->intensity),
+				               p->broad ? " broad" : "", fmtw(w1, sizeof w1, p->position), cl))
+					goto nomem;
+			}
+		free(order);
+		order = NULL;
+
+		/* 9c. Rules of the trade (common practice) that name a group the
+		 * structure lacks. */
+		{
+			long broad_oh = -1, co = -1;
+			for (size_t j = 0; j < np; j++) {
+				const irr_observed *o = &c->obs[j];
+				const irr_peak *p = o->peak;
+				if (!o->significant || o->status == IRR_PEAK_ATTRIBUTED)
+					continue;
+				if (p->broad && p->position >= 2500 && p->position <= 3300 &&
+				    p->intensity != IRR_INT_WEAK)
+					broad_oh = (long)j;
+				if (p->position >= 1680 && p->position <= 1780 &&
+				    (p->intensity == IRR_INT_STRONG || p->saturated))
+					co = (long)j;
+			}
+			if (broad_oh >= 0 && co >= 0 && !irr_inventory_find(c->inv, "carboxylic_acid") &&
+			    (c->obs[broad_oh].status == IRR_PEAK_UNEXPLAINED ||
+			     c->obs[co].status == IRR_PEAK_UNEXPLAINED)) {
+				if (add_reason(c, "rule", 0, -1, broad_oh,
+				               "a broad O-H band near %s cm-1 with a C=O band at %s cm-1 points to a carboxylic acid, which the structure lacks (common practice)",
+				               fmtw(w1, sizeof w1, c->obs[broad_oh].peak->position),
+				               fmtw(w2, sizeof w2, c->obs[co].peak->position)))
+					goto nomem;
+			}
+		}
+
+		/* 9d. The other substances. */
+		for (size_t k = 0; k < c->nothers; k++) {
+			const irr_other *r = &c->ores[k];
+			const char *who = r->name ? r->name : r->smiles;
+			const char *kind = r->kind == IRR_OTHER_STARTING_MATERIAL ? "starting material"
+			                 : r->kind == IRR_OTHER_REAGENT ? "reagent" : "solvent";
+			if (r->presence == IRR_PRESENCE_LIKELY_PRESENT) {
+				const irr_marker *best = NULL;
+				size_t nf = 0;
+				for (size_t q = 0; q < r->nmarkers; q++)
+					if (r->markers[q].peak >= 0) {
+						nf++;
+						if (!best || r->markers[q].rel_strength > best->rel_strength)
+							best = &r->markers[q];
+					}
+				impure = 1;
+				if (add_reason(c, "other_present", 0, -1, best->peak,
+				               "%s %s is likely present: %zu of %zu marker bands found, e.g. %s at %s cm-1 (%s x the product's bands)",
+				               kind, who, nf, r->nmarkers, best->label,
+				               fmtw(w1, sizeof w1, c->obs[best->peak].peak->position),
+				               (irr_format_double(w3, sizeof w3, best->rel_strength, 2), w3)))
+					goto nomem;
+			} else if (r->presence == IRR_PRESENCE_ABSENT) {
+				if (add_reason(c, "other_absent", 0, -1, -1,
+				               "%s %s: none of its %zu marker bands found", kind, who, r->nmarkers))
+					goto nomem;
+			} else {
+				if (add_reason(c, "other_cannot_tell", 0, -1, -1,
+				               "%s %s: no marker band the product cannot explain is observable; cannot tell whether it is there",
+				               kind, who))
+					goto nomem;
+			}
+		}
+
+		/* 9e. Key windows that could not be seen. */
+		for (size_t i = 0; i < ne; i++) {
+			const irr_expected *e = &c->exp[i];
+			const irr_band *b = e->band;
+			if (e->status == IRR_BAND_UNOBSERVABLE && !b->overtone && b->weight >= DECISIVE_WEIGHT &&
+			    iclass(b->intensity) >= 2)
+				if (add_reason(c, "unobservable", 0, (long)i, -1,
+				               "the %s %s (%s-%s cm-1) could not be observed: %s",
+				               b->group_name, b->label, fmtw(w1, sizeof w1, b->low),
+				               fmtw(w2, sizeof w2, b->high), e->note))
+					goto nomem;
+		}
+
+		/* 9f. Inconclusive? */
+		{
+			int inconclusive = 0;
+			if (ne == 0) {
+				inconclusive = 1;
+				if (add_reason(c, "no_bands", 0, -1, -1,
+				               "the tables expect no band for this structure"))
+					goto nomem;
+			} else if (key_total > 0 && key_seen < 0.5 * key_total) {
+				inconclusive = 1;
+			} else if (key_total == 0 && nobservable == 0) {
+				inconclusive = 1;
+			}
+			if (nsig < 2) {
+				inconclusive = 1;
+				if (add_reason(c, "noisy", 0, -1, -1, "the spectrum shows fewer than two significant bands"))
+					goto nomem;
+			} else if (c->in->spectrum && np) {
+				double top = 0;
+				for (size_t j = 0; j < np; j++)
+					if (c->obs[j].peak->height > top && !c->obs[j].peak->saturated)
+						top = c->obs[j].peak->height;
+				if (top > 0 && irr_peaklist_noise(pl) > NOISY_FRAC * top) {
+					inconclusive = 1;
+					if (add_reason(c, "noisy", 0, -1, -1,
+					               "the noise is %s%% of the strongest band: too noisy to decide",
+					               fmtw(w1, sizeof w1, 100 * irr_peaklist_noise(pl) / top)))
+						goto nomem;
+				}
+			}
+			if (decisive)
+				c->verdict = IRR_VERDICT_INCONSISTENT;
+			else if (inconclusive)
+				c->verdict = IRR_VERDICT_INCONCLUSIVE;
+			else if (impure)
+				c->verdict = IRR_VERDICT_CONSISTENT_IMPURE;
+			else
+				c->verdict = IRR_VERDICT_CONSISTENT;
+		}
+
+		/* 9g. Supporting facts and notes. */
+		if (add_reason(c, "bands_found", 0, -1, -1, "%zu of %zu observable expected bands found%s",
+		               nfound, nobservable,
+		               decisive ? "" : ", including every diagnostic one"))
+			goto nomem;
+		{
+			size_t nattr = 0;
+			for (size_t j = 0; j < np; j++)
+				if (c->obs[j].significant && c->obs[j].status == IRR_PEAK_ATTRIBUTED &&
+				    c->obs[j].attributed_kind <= IRR_SOURCE_SOLVENT)
+					nattr++;
+			if (nattr && add_reason(c, "attributed_band", 0, -1, -1,
+			                        "%zu band%s attributed to the named starting materials, reagents or solvents",
+			                        nattr, nattr == 1 ? "" : "s"))
+				goto nomem;
+		}
+		if (moisture && add_reason(c, "moisture", 0, -1, -1,
+		                           "a weak broad band near 3400 cm-1 (with one near 1640) suggests a little water; not counted against the structure"))
+			goto nomem;
+		if ((co2 || vapour) && add_reason(c, "atmosphere", 0, -1, -1, "%s%s%s in the beam path noted; not counted against the structure",
+		                                  co2 ? "atmospheric CO2" : "", co2 && vapour ? " and " : "",
+		                                  vapour ? "water vapour lines" : ""))
+			goto nomem;
+	}
+
+	/* Score: found weight against found + missing + half the unexplained
+	 * weight; an inconsistent verdict never scores above 0.49. */
+	{
+		double den = found_w + missing_w + 0.5 * unexpl_w;
+		c->score = den > 0 ? found_w / den : 0.0;
+		if (c->verdict == IRR_VERDICT_INCONSISTENT && c->score > 0.49)
+			c->score = 0.49;
+		c->score = floor(c->score * 1000.0 + 0.5) / 1000.0;
+	}
+
+	/* Cautions. */
+	if (add_caution(c, CAUTION_EVIDENCE))
+		goto nomem;
+	for (size_t i = 0; i < irr_inventory_caution_count(c->inv); i++)
+		if (add_caution(c, irr_inventory_caution(c->inv, i)))
+			goto nomem;
+	for (size_t k = 0; k < c->nothers; k++)
+		for (size_t i = 0; i < irr_inventory_caution_count(c->others[k].inv); i++)
+			if (add_caution(c, irr_inventory_caution(c->others[k].inv, i)))
+				goto nomem;
+	if (c->in->spectrum)
+		for (size_t i = 0; i < irr_spectrum_warning_count(c->in->spectrum); i++)
+			if (add_caution(c, irr_spectrum_warning(c->in->spectrum, i)))
+				goto nomem;
+
+	c->timing.reconcile = now_seconds() - t0;
+	c->ran = 1;
+	rc = IRR_OK;
+	goto done;
+nomem:
+	rc = irr_error_set(err, IRR_ENOMEM, "", 0, "out of memory");
+done:
+	free(rows);
+	free(cost);
+	free(assign);
+	free(order);
+	if (rc)
+		clear_result(c);
+	return rc;
+}
+
+/* ---- Accessors ---- */
+
+irr_verdict irr_check_verdict(const irr_check *c)
+{
+	return c && c->ran ? c->verdict : IRR_VERDICT_INCONCLUSIVE;
+}
+double irr_check_score(const irr_check *c)
+{
+	return c && c->ran ? c->score : 0.0;
+}
+size_t irr_check_reason_count(const irr_check *c)
+{
+	return c && c->ran ? c->nreasons : 0;
+}
+const irr_reason *irr_check_reason(const irr_check *c, size_t i)
+{
+	return c && c->ran && i < c->nreasons ? &c->reasons[i] : NULL;
+}
+size_t irr_check_expected_count(const irr_check *c)
+{
+	return c && c->ran ? c->nexp : 0;
+}
+const irr_expected *irr_check_expected(const irr_check *c, size_t i)
+{
+	return c && c->ran && i < c->nexp ? &c->exp[i] : NULL;
+}
+size_t irr_check_observed_count(const irr_check *c)
+{
+	return c && c->ran ? c->nobs : 0;
+}
+const irr_observed *irr_check_observed(const irr_check *c, size_t i)
+{
+	return c && c->ran && i < c->nobs ? &c->obs[i] : NULL;
+}
+size_t irr_check_other_count(const irr_check *c)
+{
+	return c && c->ran ? c->nothers : 0;
+}
+const irr_other *irr_check_other(const irr_check *c, size_t i)
+{
+	return c && c->ran && i < c->nothers ? &c->ores[i] : NULL;
+}
+size_t irr_check_caution_count(const irr_check *c)
+{
+	return c && c->ran ? c->ncautions : 0;
+}
+const char *irr_check_caution(const irr_check *c, size_t i)
+{
+	return c && c->ran && i < c->ncautions ? c->cautions[i] : NULL;
+}
+const char *irr_check_structure_smiles(const irr_check *c)
+{
+	return c ? c->smiles : NULL;
+}
+const char *irr_check_structure_formula(const irr_check *c)
+{
+	return c && c->mol ? irr_molecule_formula(c->mol) : NULL;
+}
+const irr_molecule *irr_check_molecule(const irr_check *c)
+{
+	return c ? c->mol : NULL;
+}
+const irr_inventory *irr_check_inventory(const irr_check *c)
+{
+	return c ? c->inv : NULL;
+}
+const irr_prediction *irr_check_prediction(const irr_check *c)
+{
+	return c && c->ran ? c->pred : NULL;
+}
+const irr_spectrum *irr_check_spectrum(const irr_check *c)
+{
+	return c && c->in ? c->in->spectrum : NULL;
+}
+const irr_peaklist *irr_check_peaklist(const irr_check *c)
+{
+	return c && c->in ? c->in->peaks : NULL;
+}
+const irr_tables *irr_check_tables(const irr_check *c)
+{
+	return c ? c->t : NULL;
+}
+void irr_check_get_timing(const irr_check *c, irr_check_timing *out)
+{
+	if (!out)
+		return;
+	if (c)
+		*out = c->timing;
+	else
+		memset(out, 0, sizeof *out);
+}
