@@ -93,6 +93,42 @@ FUZZ_SECONDS ?= 60
 fuzz: $(BUILD)/.deps-test
 	./tools/fuzz -t $(FUZZ_SECONDS)
 
+# ---- install, pkg-config, bench --------------------------------------------
+DESTDIR ?=
+BINDIR  ?= $(PREFIX)/bin
+LIBDIR  ?= $(PREFIX)/lib
+INCDIR  ?= $(PREFIX)/include
+DATADIR ?= $(PREFIX)/share/irrecon
+MANDIR  ?= $(PREFIX)/share/man
+
+.PHONY: irrecon.pc
+irrecon.pc: $(BUILD)/irrecon.pc
+# Rebuilt every time: PREFIX may differ between `make` and `make install`.
+$(BUILD)/irrecon.pc: irrecon.pc.in FORCE
+	@mkdir -p $(BUILD)
+	sed -e 's|@PREFIX@|$(PREFIX)|g' -e 's|@VERSION@|$(VERSION)|g' $< > $@
+FORCE:
+
+# Program, libraries (shared with soname libirrecon.so.0, and static),
+# headers, group tables, man page and pkg-config file under $(DESTDIR)$(PREFIX).
+install: all $(BUILD)/irrecon.pc
+	install -d $(DESTDIR)$(BINDIR) $(DESTDIR)$(LIBDIR)/pkgconfig $(DESTDIR)$(INCDIR)/irrecon \
+	           $(DESTDIR)$(DATADIR)/group-tables $(DESTDIR)$(MANDIR)/man1
+	install -m 755 $(BUILD)/irrecon $(DESTDIR)$(BINDIR)/irrecon
+	install -m 644 $(BUILD)/libirrecon.a $(DESTDIR)$(LIBDIR)/libirrecon.a
+	install -m 755 $(BUILD)/libirrecon.so $(DESTDIR)$(LIBDIR)/libirrecon.so.$(VERSION)
+	ln -sf libirrecon.so.$(VERSION) $(DESTDIR)$(LIBDIR)/libirrecon.so.0
+	ln -sf libirrecon.so.0 $(DESTDIR)$(LIBDIR)/libirrecon.so
+	install -m 644 include/irrecon.h $(DESTDIR)$(INCDIR)/irrecon.h
+	install -m 644 include/irrecon/*.h $(DESTDIR)$(INCDIR)/irrecon/
+	cd group-tables && find . -name '*.json' -exec install -D -m 644 {} $(DESTDIR)$(DATADIR)/group-tables/{} \;
+	install -m 644 doc/irrecon.1 $(DESTDIR)$(MANDIR)/man1/irrecon.1
+	install -m 644 $(BUILD)/irrecon.pc $(DESTDIR)$(LIBDIR)/pkgconfig/irrecon.pc
+
+# Speed and memory figures against their targets; never part of `make test`.
+bench: all $(BUILD)/.deps-test
+	@BUILD=$(BUILD) ./tools/bench
+
 clean:
 	rm -rf $(BUILD) build-san build-fuzz
 
