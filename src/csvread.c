@@ -194,13 +194,9 @@ int irr_csv__read(irr_spectrum **out, const char *data, size_t len,
 	char delim = 0;
 
 	*out = NULL;
-	/* An upper bound on the points (one per line), checked against the
-	 * limit before anything is allocated. */
-	cap = 1;
-	for (const char *p = data; (p = memchr(p, '\n', (size_t)(data + len - p))); p++)
-		cap++;
-	if (cap > max_points + 1)
-		cap = max_points + 1;
+	/* Start small and grow: a huge file that fails on its second line
+	 * should cost nothing. Growth stops at the point limit. */
+	cap = 1024;
 	x = malloc(cap * sizeof *x);
 	y = malloc(cap * sizeof *y);
 	lines = malloc(cap * sizeof *lines);
@@ -264,6 +260,21 @@ int irr_csv__read(irr_spectrum **out, const char *data, size_t len,
 			rc = irr_error_set(err, IRR_ELIMIT, name, l.no,
 			                   "more than %zu points (the limit)", max_points);
 			goto done;
+		}
+		if (n == cap) {
+			size_t nc = cap * 2 > max_points ? max_points : cap * 2;
+			double *nx = realloc(x, nc * sizeof *x);
+			double *ny = nx ? realloc(y, nc * sizeof *y) : NULL;
+			long *nl = ny ? realloc(lines, nc * sizeof *lines) : NULL;
+			if (nx)
+				x = nx;
+			if (ny)
+				y = ny;
+			if (nl)
+				lines = nl;
+			if (!nl)
+				goto nomem;
+			cap = nc;
 		}
 		x[n] = vx;
 		y[n] = vy;

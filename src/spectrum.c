@@ -580,34 +580,23 @@ static size_t mark_flat_extreme(const double *y, size_t n, double e, unsigned ch
 	return count;
 }
 
-int irr_spectrum_normalise(irr_spectrum *s, irr_error *err)
+/* The conversion proper, on copies x, y of the data: the caller keeps the
+ * originals until this succeeds. */
+static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *err)
 {
-	size_t n;
-	double *x, *y;
+	size_t n = s->n;
 	unsigned char *sat = NULL;
 	irr_yunits u;
 	int rc = IRR_OK, transmittance = 0;
-	if (!s)
-		return irr_error_set(err, IRR_EINPUT, "", 0, "no spectrum");
-	if (s->normalised)
-		return IRR_OK;
-	n = s->n;
-	x = s->x;
-	y = s->y;
-	if (n < 2)
-		return irr_error_set(err, IRR_EINPUT, s->name, 0,
-		                     "%zu data point(s): a spectrum needs at least 2", n);
 
 	/* Axis: cm-1 = 1e4 / um, then ascending. */
 	if (s->x_micrometers) {
-		/* All checked before any is changed: a failure leaves s as it was. */
-		for (size_t i = 0; i < n; i++)
+		for (size_t i = 0; i < n; i++) {
 			if (!(x[i] > 0))
 				return irr_error_set(err, IRR_EINPUT, s->name, 0,
 				                     "wavelength %g micrometres is not positive", x[i]);
-		for (size_t i = 0; i < n; i++)
 			x[i] = 1e4 / x[i];
-		s->x_micrometers = 0;
+		}
 	}
 	if (x[0] > x[n - 1])
 		for (size_t i = 0, j = n - 1; i < j; i++, j--) {
@@ -737,12 +726,52 @@ int irr_spectrum_normalise(irr_spectrum *s, irr_error *err)
 		i = j;
 	}
 	free(sat);
-	s->units = IRR_Y_ABSORBANCE;
-	s->range_lo = x[0];
-	s->range_hi = x[n - 1];
-	s->normalised = 1;
 	return IRR_OK;
 nomem:
 	free(sat);
 	return irr_error_set(err, IRR_ENOMEM, s->name, 0, "out of memory");
+}
+
+int irr_spectrum_normalise(irr_spectrum *s, irr_error *err)
+{
+	double *x, *y;
+	size_t nwarn;
+	int rc;
+	if (!s)
+		return irr_error_set(err, IRR_EINPUT, "", 0, "no spectrum");
+	if (s->normalised)
+		return IRR_OK;
+	if (s->n < 2)
+		return irr_error_set(err, IRR_EINPUT, s->name, 0,
+		                     "%zu data point(s): a spectrum needs at least 2", s->n);
+	x = malloc(s->n * sizeof *x);
+	y = malloc(s->n * sizeof *y);
+	if (!x || !y) {
+		free(x);
+		free(y);
+		return irr_error_set(err, IRR_ENOMEM, s->name, 0, "out of memory");
+	}
+	memcpy(x, s->x, s->n * sizeof *x);
+	memcpy(y, s->y, s->n * sizeof *y);
+	nwarn = s->nwarn;
+	s->nsat = 0;
+	if ((rc = normalise_arrays(s, x, y, err)) < 0) {
+		/* A failure leaves the spectrum as it was, warnings included. */
+		while (s->nwarn > nwarn)
+			free(s->warnings[--s->nwarn]);
+		s->nsat = 0;
+		free(x);
+		free(y);
+		return rc;
+	}
+	free(s->x);
+	free(s->y);
+	s->x = x;
+	s->y = y;
+	s->x_micrometers = 0;
+	s->units = IRR_Y_ABSORBANCE;
+	s->range_lo = x[0];
+	s->range_hi = x[s->n - 1];
+	s->normalised = 1;
+	return IRR_OK;
 }
