@@ -23,6 +23,10 @@ typedef struct irr_peak {
 	int broad;           /* width beyond the broad threshold */
 	int shoulder;        /* found from the second derivative, not a maximum */
 	int saturated;       /* position/height/shape not measurable */
+	/* Added after the first contract: */
+	double prominence;   /* height above the higher of the two valleys that
+	                      * part it from higher bands (= height for a band
+	                      * standing alone); 0 for shoulders and saturated */
 } irr_peak;
 
 typedef struct irr_peak_options {

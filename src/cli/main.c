@@ -5,7 +5,10 @@
 #include "cli/cli.h"
 #include "irrecon/common.h"
 
+int cmd_peaks(int argc, char **argv);
+
 static const cli_command commands[] = {
+	{"peaks", cmd_peaks, "pick the bands of a spectrum (table or JSON)"},
 	{NULL, NULL, NULL}
 };
 

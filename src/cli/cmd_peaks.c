@@ -1,0 +1,361 @@
+/* cmd_peaks.c: `irrecon peaks FILE`: reads a spectrum (or a peak list),
+ * picks the bands and prints them as an 80-column table or as JSON
+ * ("irrecon.peaks/1"). */
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <cjson/cJSON.h>
+
+#include "cli/cli.h"
+#include "irrecon/common.h"
+#include "irrecon/peaks.h"
+#include "irrecon/spectrum.h"
+
+typedef struct opt_def {
+	const char *name;
+	const char *arg;   /* NULL: a flag */
+	const char *help;
+} opt_def;
+
+/* One table drives parsing and --help. */
+static const opt_def opts[] = {
+	{"--json", NULL, "print JSON (schema irrecon.peaks/1) instead of the table"},
+	{"--output", "FILE", "write to FILE (replaced atomically) instead of stdout"},
+	{"--block", "N", "compound JCAMP-DX file: use block N (1-based; default: the infrared one)"},
+	{"--list-blocks", NULL, "list the blocks of a JCAMP-DX file and stop"},
+	{"--peak-list", NULL, "FILE is a peak list (CSV or JSON), not a spectrum"},
+	{"--decimal-comma", NULL, "CSV: ',' is the decimal separator"},
+	{"--y-units", "UNITS", "CSV without a units header: absorbance, transmittance,\n"
+	                       "                       percent_transmittance, reflectance, kubelka_munk"},
+	{"--micrometres", NULL, "CSV: X is wavelength in micrometres"},
+	{"--smooth", "CM", "Savitzky-Golay window width in cm-1 (default: auto, 7 cm-1)"},
+	{"--min-snr", "X", "minimum prominence in noise units (default 5)"},
+	{"--min-rel", "F", "ignore bands smaller than F of the strongest (default 0.01)"},
+	{"--strong", "F", "relative height for 'strong' (default 0.33)"},
+	{"--medium", "F", "relative height for 'medium' (default 0.10)"},
+	{"--broad", "CM", "FWHM at or above which a band is broad (default 60)"},
+	{"--no-shoulders", NULL, "do not look for shoulders"},
+	{"--no-baseline", NULL, "do not subtract a baseline"},
+	{"--help", NULL, "show this help"},
+	{NULL, NULL, NULL}
+};
+
+static void help(void)
+{
+	printf("usage: irrecon peaks FILE [OPTIONS]\n\n"
+	       "Picks the bands of an infrared spectrum (JCAMP-DX or two-column CSV/TSV),\n"
+	       "after converting it to absorbance on an ascending wavenumber axis.\n\n"
+	       "Options:\n");
+	for (const opt_def *d = opts; d->name; d++) {
+		char lhs[40];
+		snprintf(lhs, sizeof lhs, "%s%s%s", d->name, d->arg ? " " : "", d->arg ? d->arg : "");
+		printf("  %-20s %s\n", lhs, d->help);
+	}
+	printf("\nTable columns: band position (cm-1), height and area above the baseline\n"
+	       "(absorbance; absorbance x cm-1), full width at half height (cm-1), class\n"
+	       "relative to the strongest band, flags. A saturated band is certainly there\n"
+	       "and strong, but its position is only the centre of the clipped range.\n\n"
+	       "Exit status: 0 success, 2 error.\n");
+}
+
+static const opt_def *find_opt(const char *a)
+{
+	for (const opt_def *d = opts; d->name; d++)
+		if (!strcmp(a, d->name))
+			return d;
+	return NULL;
+}
+
+static int parse_num(const char *opt, const char *s, double *v)
+{
+	char *end;
+	if (irr_parse_double(s, &end, v) != IRR_OK || *end)
+		return cli_usage_error("peaks", "%s needs a number, not '%s'", opt, s);
+	return 0;
+}
+
+static const char *fmt(char *buf, size_t size, double v, int dec)
+{
+	irr_format_double(buf, size, v, dec);
+	return buf;
+}
+
+/* Rounds for JSON so the output does not carry noise digits. */
+static double rnd(double v, double step)
+{
+	double r = step * (double)(long long)(v / step + (v >= 0 ? 0.5 : -0.5));
+	return r == 0.0 ? 0.0 : r;
+}
+
+static char *render_json(const irr_spectrum *s, const irr_peaklist *pl, const char *path)
+{
+	cJSON *root = cJSON_CreateObject(), *sp, *arr, *pk;
+	char *txt;
+	double lo, hi;
+	if (!root)
+		return NULL;
+	cJSON_AddStringToObject(root, "schema", "irrecon.peaks/1");
+	sp = cJSON_AddObjectToObject(root, "spectrum");
+	cJSON_AddStringToObject(sp, "file", path);
+	if (s) {
+		cJSON_AddNumberToObject(sp, "points", (double)irr_spectrum_points(s));
+		cJSON_AddNumberToObject(sp, "first_x", irr_spectrum_first_x(s));
+		cJSON_AddNumberToObject(sp, "last_x", irr_spectrum_last_x(s));
+		cJSON_AddStringToObject(sp, "y_units", irr_yunits_name(irr_spectrum_source_y_units(s)));
+		cJSON_AddStringToObject(sp, "source_format", irr_spectrum_source_format(s));
+		cJSON_AddStringToObject(sp, "title", irr_spectrum_title(s));
+	} else {
+		cJSON_AddNumberToObject(sp, "points", 0);
+		cJSON_AddNullToObject(sp, "first_x");
+		cJSON_AddNullToObject(sp, "last_x");
+		cJSON_AddStringToObject(sp, "y_units", "unknown");
+		cJSON_AddStringToObject(sp, "source_format", "peak-list");
+	}
+	irr_peaklist_range(pl, &lo, &hi);
+	arr = cJSON_AddArrayToObject(sp, "measured_range");
+	cJSON_AddItemToArray(arr, cJSON_CreateNumber(rnd(lo, 1e-3)));
+	cJSON_AddItemToArray(arr, cJSON_CreateNumber(rnd(hi, 1e-3)));
+	arr = cJSON_AddArrayToObject(sp, "warnings");
+	if (s)
+		for (size_t i = 0; i < irr_spectrum_warning_count(s); i++)
+			cJSON_AddItemToArray(arr, cJSON_CreateString(irr_spectrum_warning(s, i)));
+	arr = cJSON_AddArrayToObject(sp, "saturated_ranges");
+	for (size_t i = 0; i < irr_peaklist_saturated_count(pl); i++) {
+		double a, b;
+		cJSON *r = cJSON_CreateArray();
+		irr_peaklist_saturated_range(pl, i, &a, &b);
+		cJSON_AddItemToArray(r, cJSON_CreateNumber(rnd(a, 1e-2)));
+		cJSON_AddItemToArray(r, cJSON_CreateNumber(rnd(b, 1e-2)));
+		cJSON_AddItemToArray(arr, r);
+	}
+	cJSON_AddNumberToObject(sp, "noise", irr_peaklist_noise(pl));
+	arr = cJSON_AddArrayToObject(root, "peaks");
+	for (size_t i = 0; i < irr_peaklist_count(pl); i++) {
+		const irr_peak *p = irr_peaklist_get(pl, i);
+		pk = cJSON_CreateObject();
+		cJSON_AddNumberToObject(pk, "position", rnd(p->position, 1e-2));
+		cJSON_AddNumberToObject(pk, "height", rnd(p->height, 1e-5));
+		cJSON_AddNumberToObject(pk, "area", rnd(p->area, 1e-4));
+		cJSON_AddNumberToObject(pk, "fwhm", rnd(p->fwhm, 1e-2));
+		cJSON_AddNumberToObject(pk, "rel_height", rnd(p->rel_height, 1e-4));
+		cJSON_AddNumberToObject(pk, "low", rnd(p->low, 1e-2));
+		cJSON_AddNumberToObject(pk, "high", rnd(p->high, 1e-2));
+		cJSON_AddStringToObject(pk, "intensity", irr_intensity_name(p->intensity));
+		cJSON_AddBoolToObject(pk, "broad", p->broad);
+		cJSON_AddBoolToObject(pk, "shoulder", p->shoulder);
+		cJSON_AddBoolToObject(pk, "saturated", p->saturated);
+		cJSON_AddItemToArray(arr, pk);
+	}
+	txt = cJSON_Print(root);
+	cJSON_Delete(root);
+	return txt;
+}
+
+static char *render_table(const irr_spectrum *s, const irr_peaklist *pl, const char *path)
+{
+	char *buf = NULL;
+	size_t len = 0;
+	FILE *f = open_memstream(&buf, &len);
+	char a[64], b[64], c[64], d[64];
+	size_t n = irr_peaklist_count(pl), nsh = 0, nsat = 0, nbr = 0;
+	double lo, hi;
+	if (!f)
+		return NULL;
+	for (size_t i = 0; i < n; i++) {
+		const irr_peak *p = irr_peaklist_get(pl, i);
+		nsh += p->shoulder != 0;
+		nsat += p->saturated != 0;
+		nbr += p->broad != 0;
+	}
+	irr_peaklist_range(pl, &lo, &hi);
+	fprintf(f, "%s\n", path);
+	if (s) {
+		fprintf(f, "  %zu points, %s to %s cm-1, %s (%s), read as absorbance\n",
+		        irr_spectrum_points(s), fmt(a, sizeof a, lo, 1), fmt(b, sizeof b, hi, 1),
+		        irr_spectrum_source_format(s), irr_yunits_name(irr_spectrum_source_y_units(s)));
+		for (size_t i = 0; i < irr_spectrum_warning_count(s); i++)
+			fprintf(f, "  warning: %s\n", irr_spectrum_warning(s, i));
+		fprintf(f, "  noise %s A; ", fmt(a, sizeof a, irr_peaklist_noise(pl), 5));
+	} else {
+		fprintf(f, "  peak list, range %s to %s cm-1; ", fmt(a, sizeof a, lo, 1), fmt(b, sizeof b, hi, 1));
+	}
+	fprintf(f, "%zu band%s (%zu shoulder%s, %zu broad, %zu saturated)\n\n", n, n == 1 ? "" : "s",
+	        nsh, nsh == 1 ? "" : "s", nbr, nsat);
+	if (n == 0) {
+		fprintf(f, "  no bands above the thresholds\n");
+	} else {
+		fprintf(f, "  %9s %9s %9s %7s  %-7s %s\n", "cm-1", "height", "area", "fwhm", "class", "notes");
+		for (size_t i = 0; i < n; i++) {
+			const irr_peak *p = irr_peaklist_get(pl, i);
+			char notes[200] = "";
+			if (p->saturated)
+				snprintf(notes, sizeof notes, "saturated %s-%s", fmt(c, sizeof c, p->low, 0),
+				         fmt(d, sizeof d, p->high, 0));
+			if (p->shoulder)
+				snprintf(notes + strlen(notes), sizeof notes - strlen(notes), "%sshoulder",
+				         notes[0] ? ", " : "");
+			if (p->broad)
+				snprintf(notes + strlen(notes), sizeof notes - strlen(notes), "%sbroad",
+				         notes[0] ? ", " : "");
+			fprintf(f, "  %9s %9s %9s %7s  %-7s %s\n", fmt(a, sizeof a, p->position, 1),
+			        p->height > 0 ? fmt(b, sizeof b, p->height, 4) : "-",
+			        p->area > 0 ? fmt(c, sizeof c, p->area, 3) : "-",
+			        p->fwhm > 0 ? fmt(d, sizeof d, p->fwhm, 1) : "-",
+			        irr_intensity_name(p->intensity), notes);
+		}
+	}
+	if (fclose(f) != 0) {
+		free(buf);
+		return NULL;
+	}
+	return buf;
+}
+
+static int list_blocks(const char *path)
+{
+	irr_block_info *b = NULL;
+	size_t nb = 0;
+	irr_error err;
+	irr_error_clear(&err);
+	if (irr_jcamp_list_blocks(&b, &nb, path, &err) != IRR_OK)
+		return cli_fail(&err);
+	printf("%s: %zu block%s\n", path, nb, nb == 1 ? "" : "s");
+	for (size_t i = 0; i < nb; i++)
+		printf("  %3d  %-22s %-4s %s\n", b[i].index, b[i].data_type,
+		       b[i].has_data ? "data" : "-", b[i].title);
+	free(b);
+	return CLI_OK;
+}
+
+int cmd_peaks(int argc, char **argv)
+{
+	irr_read_options ro;
+	irr_peak_options po;
+	irr_error err;
+	const char *path = NULL, *output = "-";
+	int json = 0, listb = 0, peaklist = 0, rc = CLI_ERROR;
+	irr_spectrum *s = NULL;
+	irr_peaklist *pl = NULL;
+	char *text = NULL;
+
+	irr_read_options_init(&ro);
+	irr_peak_options_init(&po);
+	irr_error_clear(&err);
+	for (int i = 1; i < argc; i++) {
+		const char *a = argv[i];
+		const opt_def *d;
+		const char *v = NULL;
+		double num = 0.0;
+		if (a[0] != '-' || !strcmp(a, "-")) {
+			if (path)
+				return cli_usage_error("peaks", "one FILE only ('%s' and '%s')", path, a);
+			path = a;
+			continue;
+		}
+		if (!strcmp(a, "-h"))
+			a = "--help";
+		if (!(d = find_opt(a)))
+			return cli_usage_error("peaks", "unknown option '%s'", a);
+		if (d->arg) {
+			if (i + 1 >= argc)
+				return cli_usage_error("peaks", "%s needs a value", a);
+			v = argv[++i];
+		}
+		if (!strcmp(a, "--help")) {
+			help();
+			return CLI_OK;
+		} else if (!strcmp(a, "--json")) {
+			json = 1;
+		} else if (!strcmp(a, "--output")) {
+			output = v;
+		} else if (!strcmp(a, "--block")) {
+			if (parse_num(a, v, &num) || num < 1 || num > 1e6 || num != (double)(int)num)
+				return cli_usage_error("peaks", "--block needs a whole number >= 1, not '%s'", v);
+			ro.block = (int)num;
+		} else if (!strcmp(a, "--list-blocks")) {
+			listb = 1;
+		} else if (!strcmp(a, "--peak-list")) {
+			peaklist = 1;
+		} else if (!strcmp(a, "--decimal-comma")) {
+			ro.decimal_comma = 1;
+		} else if (!strcmp(a, "--no-shoulders")) {
+			po.shoulders = 0;
+		} else if (!strcmp(a, "--no-baseline")) {
+			po.baseline = 0;
+		} else if (!strcmp(a, "--micrometres")) {
+			ro.x_micrometers = 1;
+		} else if (!strcmp(a, "--y-units")) {
+			static const irr_yunits all[] = {IRR_Y_TRANSMITTANCE, IRR_Y_PERCENT_T, IRR_Y_ABSORBANCE,
+			                                 IRR_Y_REFLECTANCE, IRR_Y_KUBELKA_MUNK, IRR_Y_ARBITRARY};
+			size_t k;
+			for (k = 0; k < sizeof all / sizeof all[0]; k++)
+				if (!strcmp(v, irr_yunits_name(all[k])))
+					break;
+			if (k == sizeof all / sizeof all[0])
+				return cli_usage_error("peaks", "unknown Y units '%s'", v);
+			ro.y_units = all[k];
+		} else {
+			if (parse_num(a, v, &num))
+				return CLI_ERROR;
+			if (!strcmp(a, "--smooth"))
+				po.smooth_cm = num;
+			else if (!strcmp(a, "--min-snr"))
+				po.min_snr = num;
+			else if (!strcmp(a, "--min-rel"))
+				po.min_rel_height = num;
+			else if (!strcmp(a, "--strong"))
+				po.strong_frac = num;
+			else if (!strcmp(a, "--medium"))
+				po.medium_frac = num;
+			else if (!strcmp(a, "--broad"))
+				po.broad_cm = num;
+		}
+	}
+	if (!path)
+		return cli_usage_error("peaks", "no FILE given");
+	if (listb)
+		return list_blocks(path);
+
+	if (peaklist) {
+		if (irr_peaklist_read_file(&pl, path, &err) != IRR_OK) {
+			rc = cli_fail(&err);
+			goto done;
+		}
+	} else {
+		if (irr_spectrum_read_file(&s, path, &ro, &err) != IRR_OK ||
+		    irr_spectrum_normalise(s, &err) != IRR_OK ||
+		    irr_peaks_pick(&pl, s, &po, &err) != IRR_OK) {
+			rc = cli_fail(&err);
+			goto done;
+		}
+	}
+	text = json ? render_json(s, pl, path) : render_table(s, pl, path);
+	if (!text) {
+		irr_error_set(&err, IRR_ENOMEM, path, 0, "out of memory while formatting");
+		rc = cli_fail(&err);
+		goto done;
+	}
+	if (json) {
+		size_t l = strlen(text);
+		char *t2 = realloc(text, l + 2);
+		if (!t2) {
+			irr_error_set(&err, IRR_ENOMEM, path, 0, "out of memory while formatting");
+			rc = cli_fail(&err);
+			goto done;
+		}
+		text = t2;
+		text[l] = '\n';
+		text[l + 1] = '\0';
+	}
+	if (cli_write_file_atomic(output, text, strlen(text), &err) != IRR_OK) {
+		rc = cli_fail(&err);
+		goto done;
+	}
+	rc = CLI_OK;
+done:
+	free(text);
+	irr_peaklist_free(pl);
+	irr_spectrum_free(s);
+	return rc;
+}

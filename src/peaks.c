@@ -1,0 +1,927 @@
+/* peaks.c: the "pick peaks" stage: from a normalised absorbance spectrum to
+ * a list of observed bands (position, height, area, width, class, flags).
+ *
+ * Pipeline, each step O(n) so a 7,000-point spectrum takes well under a
+ * millisecond:
+ *  1. work on the point index when the spacing is uniform within 2 %,
+ *     otherwise resample linearly onto a uniform grid at the median spacing;
+ *  2. Savitzky-Golay smoothing and second derivative (Savitzky & Golay,
+ *     Anal. Chem. 36 (1964) 1627; see sgfilter.c);
+ *  3. baseline: the lower convex hull of the smoothed trace ("rubber band",
+ *     common practice in IR software; e.g. described in H. G. Schulze et
+ *     al., Appl. Spectrosc. 59 (2005) 545, on baseline methods). It is
+ *     O(n) by Andrew's monotone chain (A. M. Andrew, Inf. Process. Lett. 9
+ *     (1979) 216) because x is already sorted;
+ *  4. noise: the median absolute second difference of the raw trace, scaled
+ *     to a standard deviation (MAD x 1.4826 / sqrt 6 for white noise; a
+ *     robust estimator, Hampel, J. Am. Stat. Assoc. 69 (1974) 383), taken
+ *     per block so that noisier stretches (low transmittance) get their own
+ *     level;
+ *  5. maxima of the smoothed, baseline-corrected trace kept by topographic
+ *     prominence (height above the higher of the two lowest points that
+ *     separate it from higher ground), computed for all points at once with
+ *     a monotonic stack;
+ *  6. position by three-point interpolation (Gaussian, i.e. a parabola
+ *     through the logarithms, when the three values are positive; else a
+ *     parabola), FWHM by linear interpolation at half height, area by the
+ *     trapezoidal rule between the valleys that separate neighbours;
+ *  7. shoulders: separate lobes (minima) of the second derivative that do
+ *     not belong to a kept maximum;
+ *  8. saturated ranges from the spectrum become saturated peaks. */
+#include "peakpick.h"
+
+#include <float.h>
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "irrecon/spectrum.h"
+
+/* Defaults, chosen on the shared measured spectra (ATR, film, solution,
+ * digitised scans) and the synthetic tests in tests/unit/test_peaks.c. */
+#define DEF_MIN_SNR 5.0
+#define DEF_MIN_REL 0.01
+#define DEF_STRONG 0.33
+#define DEF_MEDIUM 0.10
+#define DEF_BROAD 60.0
+/* Auto smoothing window (cm-1): narrow enough for condensed-phase bands of
+ * 6-8 cm-1 FWHM (polystyrene's aromatic C-H and ring bands). */
+#define AUTO_SMOOTH_CM 7.0
+/* Shoulders need a deeper second-derivative lobe than maxima need
+ * prominence: the second derivative amplifies noise and ripple. */
+#define SHOULDER_SNR_FACTOR 1.6
+#define NOISE_BLOCK 96
+
+void irr_peak_options_init(irr_peak_options *o)
+{
+	if (!o)
+		return;
+	o->smooth_cm = 0.0;
+	o->min_snr = DEF_MIN_SNR;
+	o->min_rel_height = DEF_MIN_REL;
+	o->strong_frac = DEF_STRONG;
+	o->medium_frac = DEF_MEDIUM;
+	o->broad_cm = DEF_BROAD;
+	o->shoulders = 1;
+	o->baseline = 1;
+}
+
+/* ---- the list object ---------------------------------------------------- */
+
+irr_peaklist *irr_peaks__new(void)
+{
+	irr_peaklist *pl = calloc(1, sizeof *pl);
+	if (!pl)
+		return NULL;
+	pl->range_low = 400.0;
+	pl->range_high = 4000.0;
+	return pl;
+}
+
+int irr_peaks__push(irr_peaklist *pl, const irr_peak *p)
+{
+	if (pl->count == pl->cap) {
+		size_t nc = pl->cap ? 2 * pl->cap : 32;
+		irr_peak *np = realloc(pl->peaks, nc * sizeof *np);
+		if (!np)
+			return IRR_ENOMEM;
+		pl->peaks = np;
+		pl->cap = nc;
+	}
+	pl->peaks[pl->count++] = *p;
+	return IRR_OK;
+}
+
+static int cmp_desc(const void *a, const void *b)
+{
+	double pa = ((const irr_peak *)a)->position, pb = ((const irr_peak *)b)->position;
+	return (pa < pb) - (pa > pb);
+}
+
+void irr_peaks__sort(irr_peaklist *pl)
+{
+	if (pl && pl->count > 1)
+		qsort(pl->peaks, pl->count, sizeof *pl->peaks, cmp_desc);
+}
+
+void irr_peaks__classify(irr_peaklist *pl, const irr_peak_options *o)
+{
+	double hmax = 0.0;
+	for (size_t i = 0; i < pl->count; i++)
+		if (pl->peaks[i].height > hmax)
+			hmax = pl->peaks[i].height;
+	for (size_t i = 0; i < pl->count; i++) {
+		irr_peak *p = &pl->peaks[i];
+		if (p->height > 0.0 && hmax > 0.0) {
+			p->rel_height = p->height / hmax;
+			p->intensity = p->rel_height >= o->strong_frac ? IRR_INT_STRONG
+			             : p->rel_height >= o->medium_frac ? IRR_INT_MEDIUM
+			             : IRR_INT_WEAK;
+		}
+		if (p->saturated) {
+			/* The true height is above the clip, so it is at least as
+			 * strong as anything measured. */
+			p->rel_height = 1.0;
+			p->intensity = IRR_INT_STRONG;
+			p->broad = (p->high - p->low) >= o->broad_cm;
+		} else if (p->fwhm > 0.0) {
+			p->broad = p->fwhm >= o->broad_cm;
+		}
+	}
+}
+
+void irr_peaklist_free(irr_peaklist *pl)
+{
+	if (!pl)
+		return;
+	free(pl->peaks);
+	free(pl->sat);
+	free(pl);
+}
+
+size_t irr_peaklist_count(const irr_peaklist *pl)
+{
+	return pl ? pl->count : 0;
+}
+
+const irr_peak *irr_peaklist_get(const irr_peaklist *pl, size_t i)
+{
+	return (pl && i < pl->count) ? &pl->peaks[i] : NULL;
+}
+
+double irr_peaklist_noise(const irr_peaklist *pl)
+{
+	return pl ? pl->noise : 0.0;
+}
+
+void irr_peaklist_range(const irr_peaklist *pl, double *low, double *high)
+{
+	if (low)
+		*low = pl ? pl->range_low : 0.0;
+	if (high)
+		*high = pl ? pl->range_high : 0.0;
+}
+
+size_t irr_peaklist_saturated_count(const irr_peaklist *pl)
+{
+	return pl ? pl->nsat : 0;
+}
+
+void irr_peaklist_saturated_range(const irr_peaklist *pl, size_t i,
+                                  double *low, double *high)
+{
+	int ok = pl && i < pl->nsat;
+	if (low)
+		*low = ok ? pl->sat[2 * i] : 0.0;
+	if (high)
+		*high = ok ? pl->sat[2 * i + 1] : 0.0;
+}
+
+/* ---- numerical helpers --------------------------------------------------- */
+
+/* k-th smallest of a[0..n-1] (reorders a): Hoare's selection, expected O(n). */
+static double select_kth(double *a, size_t n, size_t k)
+{
+	size_t lo = 0, hi = n - 1;
+	while (lo < hi) {
+		double pivot = a[lo + (hi - lo) / 2];
+		size_t i = lo, j = hi;
+		while (i <= j) {
+			while (a[i] < pivot)
+				i++;
+			while (a[j] > pivot)
+				j--;
+			if (i <= j) {
+				double t = a[i];
+				a[i] = a[j];
+				a[j] = t;
+				i++;
+				if (j == 0)
+					break;
+				j--;
+			}
+		}
+		if (k <= j)
+			hi = j;
+		else if (k >= i)
+			lo = i;
+		else
+			return a[k];
+	}
+	return a[k];
+}
+
+static double median_inplace(double *a, size_t n)
+{
+	if (n == 0)
+		return 0.0;
+	return select_kth(a, n, n / 2);
+}
+
+/* Robust sd of white noise from second differences: d = y[i-1]-2y[i]+y[i+1]
+ * has sd sigma*sqrt(6); MAD*1.4826 estimates the sd of a normal sample. */
+static double noise_of(const double *y, size_t n, double *scratch)
+{
+	size_t m = 0;
+	for (size_t i = 1; i + 1 < n; i++)
+		scratch[m++] = fabs(y[i - 1] - 2.0 * y[i] + y[i + 1]);
+	if (m == 0)
+		return 0.0;
+	return 1.4826 * median_inplace(scratch, m) / sqrt(6.0);
+}
+
+/* Lower convex hull of (x, y) by Andrew's monotone chain (x ascending),
+ * linearly interpolated onto every point. idx is scratch of n entries. */
+static void hull_baseline(const double *x, const double *y, size_t n,
+                          double *base, size_t *idx)
+{
+	size_t k = 0;
+	for (size_t i = 0; i < n; i++) {
+		while (k >= 2) {
+			size_t a = idx[k - 2], b = idx[k - 1];
+			/* Pop b while it lies on or above the chord a-i. */
+			double cross = (x[b] - x[a]) * (y[i] - y[a]) - (y[b] - y[a]) * (x[i] - x[a]);
+			if (cross <= 0.0)
+				k--;
+			else
+				break;
+		}
+		idx[k++] = i;
+	}
+	for (size_t h = 0; h + 1 < k; h++) {
+		size_t a = idx[h], b = idx[h + 1];
+		double slope = (y[b] - y[a]) / (x[b] - x[a]);
+		for (size_t i = a; i <= b; i++)
+			base[i] = y[a] + slope * (x[i] - x[a]);
+	}
+	if (k == 1)
+		base[0] = y[0];
+}
+
+/* Bases for topographic prominence. For every i, lb[i] = the lowest value
+ * between i and the nearest point to its left that is strictly higher (or
+ * the start), rb[i] likewise to the right (nearest point higher or equal,
+ * so a flat top counts once). Monotonic stack of indices with decreasing
+ * values; each entry carries the minimum of its own segment: O(n). */
+static void prominence_bases(const double *c, size_t n, double *lb, double *rb,
+                             size_t *stk, double *smin)
+{
+	size_t top = 0;
+	for (size_t i = 0; i < n; i++) {
+		double m = c[i];
+		while (top > 0 && c[stk[top - 1]] <= c[i]) {
+			if (smin[top - 1] < m)
+				m = smin[top - 1];
+			top--;
+		}
+		lb[i] = m;
+		stk[top] = i;
+		smin[top] = m;
+		top++;
+	}
+	top = 0;
+	for (size_t ii = n; ii-- > 0;) {
+		double m = c[ii];
+		while (top > 0 && c[stk[top - 1]] < c[ii]) {
+			if (smin[top - 1] < m)
+				m = smin[top - 1];
+			top--;
+		}
+		rb[ii] = m;
+		stk[top] = ii;
+		smin[top] = m;
+		top++;
+	}
+}
+
+/* Three-point interpolation of an extremum at i: offset (-0.5..0.5 points)
+ * and value. Gaussian (parabola through logs) when all three are positive
+ * and a maximum is sought, which is exact for a Gaussian band; a parabola
+ * otherwise. */
+static void interp3(const double *c, size_t i, int use_log, double *off, double *val)
+{
+	double a = c[i - 1], b = c[i], d = c[i + 1];
+	double den, o;
+	if (use_log && a > 0.0 && b > 0.0 && d > 0.0) {
+		double la = log(a), lb = log(b), ld = log(d);
+		den = la - 2.0 * lb + ld;
+		if (den < 0.0) {
+			o = 0.5 * (la - ld) / den;
+			if (o > 0.5)
+				o = 0.5;
+			if (o < -0.5)
+				o = -0.5;
+			*off = o;
+			*val = exp(lb - 0.25 * (la - ld) * o);
+			return;
+		}
+	}
+	den = a - 2.0 * b + d;
+	if (den == 0.0) {
+		*off = 0.0;
+		*val = b;
+		return;
+	}
+	o = 0.5 * (a - d) / den;
+	if (o > 0.5)
+		o = 0.5;
+	if (o < -0.5)
+		o = -0.5;
+	*off = o;
+	*val = b - 0.25 * (a - d) * o;
+}
+
+/* x at fractional index t on the working grid. */
+static double x_at(const double *x, size_t n, double t)
+{
+	size_t i;
+	double f;
+	if (t <= 0.0)
+		return x[0] + t * (x[1] - x[0]);
+	if (t >= (double)(n - 1))
+		return x[n - 1] + (t - (double)(n - 1)) * (x[n - 1] - x[n - 2]);
+	i = (size_t)t;
+	f = t - (double)i;
+	return x[i] + f * (x[i + 1] - x[i]);
+}
+
+static int in_saturated(double pos, const double *sat, size_t nsat, double guard)
+{
+	for (size_t k = 0; k < nsat; k++)
+		if (pos >= sat[2 * k] - guard && pos <= sat[2 * k + 1] + guard)
+			return 1;
+	return 0;
+}
+
+/* Working arrays, one allocation. */
+struct work {
+	double *x, *y;      /* working grid (own copies when resampled) */
+	double *s, *base, *c, *d2, *lb, *rb, *smin, *scratch, *noise, *nd2;
+	size_t *stk, *stk2;
+	unsigned char *keep;
+	void *block;
+};
+typedef struct work work;
+
+/* Crossings of `level` left and right of maximum i, walked no further
+ * than the valleys lv and rv; a missing side is mirrored about pos.
+ * Returns 0 when neither side reaches the level. */
+static int width_at(const struct work *w, size_t n, size_t i, size_t lv, size_t rv,
+                    double pos, double level, double *lo, double *hi)
+{
+	double tl = -1.0, tr = -1.0;
+	for (size_t j = i; j > lv; j--)
+		if (w->c[j - 1] <= level) {
+			tl = (double)j - (w->c[j] - level) / (w->c[j] - w->c[j - 1]);
+			break;
+		}
+	for (size_t j = i; j < rv; j++)
+		if (w->c[j + 1] <= level) {
+			tr = (double)j + (w->c[j] - level) / (w->c[j] - w->c[j + 1]);
+			break;
+		}
+	if (tl < 0.0 && tr < 0.0)
+		return 0;
+	*lo = tl >= 0.0 ? x_at(w->x, n, tl) : 2.0 * pos - x_at(w->x, n, tr);
+	*hi = tr >= 0.0 ? x_at(w->x, n, tr) : 2.0 * pos - *lo;
+	return 1;
+}
+
+/* Median of v[b-1], v[b], v[b+1] (the two at an end: the smaller). */
+static double med3(const double *v, size_t nb, size_t b)
+{
+	double a = b > 0 ? v[b - 1] : v[b], c = b + 1 < nb ? v[b + 1] : v[b], m = v[b];
+	if (b == 0 || b + 1 == nb) {
+		double o = b == 0 ? c : a;
+		return o < m ? o : m;
+	}
+	if ((a <= m && m <= c) || (c <= m && m <= a))
+		return m;
+	if ((m <= a && a <= c) || (c <= a && a <= m))
+		return a;
+	return c;
+}
+
+/* ---- the picker ---------------------------------------------------------- */
+
+
+static int check_options(const irr_peak_options *o, const char *name, irr_error *err)
+{
+	if (!(o->smooth_cm >= 0.0) || !isfinite(o->smooth_cm))
+		return irr_error_set(err, IRR_EINPUT, name, 0, "smoothing window must be >= 0 cm-1");
+	if (!(o->min_snr >= 0.0) || !isfinite(o->min_snr))
+		return irr_error_set(err, IRR_EINPUT, name, 0, "minimum signal-to-noise must be >= 0");
+	if (!(o->min_rel_height >= 0.0 && o->min_rel_height <= 1.0))
+		return irr_error_set(err, IRR_EINPUT, name, 0, "minimum relative height must be within 0..1");
+	if (!(o->strong_frac >= 0.0 && o->strong_frac <= 1.0 &&
+	      o->medium_frac >= 0.0 && o->medium_frac <= o->strong_frac))
+		return irr_error_set(err, IRR_EINPUT, name, 0,
+		                     "intensity thresholds must satisfy 0 <= medium <= strong <= 1");
+	if (!(o->broad_cm > 0.0) || !isfinite(o->broad_cm))
+		return irr_error_set(err, IRR_EINPUT, name, 0, "broad threshold must be > 0 cm-1");
+	return IRR_OK;
+}
+
+int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
+                       size_t n0, const double *sat, size_t nsat,
+                       const irr_peak_options *opt, const char *name,
+                       irr_error *err)
+{
+	irr_peak_options defo;
+	const irr_peak_options *o = opt;
+	irr_peaklist *pl = NULL;
+	work w;
+	size_t n, nb;
+	double dx, med;
+	int half, order, rc = IRR_OK, uniform = 1;
+	double gain0, gain2, sigma;
+
+	memset(&w, 0, sizeof w);
+	if (out)
+		*out = NULL;
+	if (!name)
+		name = "";
+	if (!o) {
+		irr_peak_options_init(&defo);
+		o = &defo;
+	}
+	if (!out || !x0 || !y0)
+		return irr_error_set(err, IRR_EINPUT, name, 0, "no spectrum");
+	if ((rc = check_options(o, name, err)) != IRR_OK)
+		return rc;
+	if (n0 < 5)
+		return irr_error_set(err, IRR_EINPUT, name, 0,
+		                     "%zu points are too few to pick peaks (need 5)", n0);
+	for (size_t i = 0; i < n0; i++) {
+		if (!isfinite(x0[i]) || !isfinite(y0[i]))
+			return irr_error_set(err, IRR_EINPUT, name, 0,
+			                     "point %zu is not a finite number", i + 1);
+		if (i > 0 && !(x0[i] > x0[i - 1]))
+			return irr_error_set(err, IRR_EINPUT, name, 0,
+			                     "wavenumbers must be strictly ascending (point %zu)", i + 1);
+	}
+
+	/* Median spacing and uniformity. */
+	{
+		double *tmp = malloc((n0 - 1) * sizeof *tmp);
+		if (!tmp)
+			return irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
+		for (size_t i = 0; i + 1 < n0; i++)
+			tmp[i] = x0[i + 1] - x0[i];
+		med = median_inplace(tmp, n0 - 1);
+		free(tmp);
+		for (size_t i = 0; i + 1 < n0; i++)
+			if (fabs((x0[i + 1] - x0[i]) - med) > 0.02 * med) {
+				uniform = 0;
+				break;
+			}
+	}
+	if (uniform) {
+		n = n0;
+		dx = (x0[n0 - 1] - x0[0]) / (double)(n0 - 1);
+	} else {
+		/* Resample at the median spacing; a file with large gaps could ask
+		 * for a huge grid, so the grid is capped at 4x the points given. */
+		double span = x0[n0 - 1] - x0[0];
+		size_t m = (size_t)floor(span / med) + 1;
+		if (m > 4 * n0 + 16)
+			m = 4 * n0 + 16;
+		n = m;
+		dx = span / (double)(n - 1);
+	}
+
+	/* One block for every working array. */
+	{
+		size_t nd = 12, bytes;
+		nb = (n + NOISE_BLOCK - 1) / NOISE_BLOCK;
+		bytes = (nd * n + 2 * nb) * sizeof(double) + 2 * n * sizeof(size_t) + n;
+		w.block = malloc(bytes);
+		if (!w.block)
+			return irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
+		double *d = w.block;
+		w.x = d; d += n;
+		w.y = d; d += n;
+		w.s = d; d += n;
+		w.base = d; d += n;
+		w.c = d; d += n;
+		w.d2 = d; d += n;
+		w.lb = d; d += n;
+		w.rb = d; d += n;
+		w.smin = d; d += n;
+		w.scratch = d; d += n;
+		w.noise = d; d += n; /* per point noise of the smoothed trace */
+		w.nd2 = d; d += n;   /* per point noise of the second derivative */
+		d += 2 * nb;
+		w.stk = (size_t *)d;
+		w.stk2 = w.stk + n;
+		w.keep = (unsigned char *)(w.stk2 + n);
+	}
+	if (uniform) {
+		memcpy(w.x, x0, n * sizeof(double));
+		memcpy(w.y, y0, n * sizeof(double));
+	} else {
+		size_t j = 0;
+		for (size_t k = 0; k < n; k++) {
+			double xk = x0[0] + dx * (double)k;
+			if (k == n - 1)
+				xk = x0[n0 - 1];
+			while (j + 2 < n0 && x0[j + 1] < xk)
+				j++;
+			double f = (xk - x0[j]) / (x0[j + 1] - x0[j]);
+			if (f < 0.0)
+				f = 0.0;
+			if (f > 1.0)
+				f = 1.0;
+			w.x[k] = xk;
+			w.y[k] = y0[j] + f * (y0[j + 1] - y0[j]);
+		}
+	}
+
+	/* Savitzky-Golay parameters: window from the option (or auto) in cm-1,
+	 * degree 4 when the window is wide enough to smooth with it (keeps
+	 * band heights and widths), else degree 2. */
+	{
+		double win = o->smooth_cm > 0.0 ? o->smooth_cm : AUTO_SMOOTH_CM;
+		half = (int)floor(win / (2.0 * dx) + 0.5);
+		if (half < 1)
+			half = 1;
+		if (half > 50)
+			half = 50;
+		if ((size_t)(2 * half + 1) > n)
+			half = (int)((n - 1) / 2);
+		order = half >= 4 ? 4 : 2;
+		if (order > 2 * half)
+			order = 2 * half;
+	}
+	if ((rc = irr_sg__apply(w.y, n, half, order, 0, w.s)) != IRR_OK ||
+	    (rc = irr_sg__apply(w.y, n, half, order >= 2 ? order : 2, 2, w.d2)) != IRR_OK) {
+		irr_error_set(err, rc, name, 0, "smoothing failed");
+		goto done;
+	}
+	gain0 = irr_sg__noise_gain(half, order, 0);
+	gain2 = irr_sg__noise_gain(half, order >= 2 ? order : 2, 2);
+
+	if (o->baseline)
+		hull_baseline(w.x, w.s, n, w.base, w.stk);
+	else
+		memset(w.base, 0, n * sizeof(double));
+	for (size_t i = 0; i < n; i++)
+		w.c[i] = w.s[i] - w.base[i];
+
+	/* Noise. sigma: the global robust level of the raw trace (white-noise
+	 * model). Per block two levels: the smoothed trace's (raw level times
+	 * the filter's gain) and the second derivative's, the latter also
+	 * measured directly as the robust spread of the filtered derivative, so
+	 * correlated noise and ripple (which second differences of the raw
+	 * trace under-rate) are judged at the scale the filter passes. A block
+	 * takes the median of its own and its two neighbours' levels, so one
+	 * sharp band does not pass for noise; nothing goes below the global
+	 * white level. A floor keeps noise-free (synthetic or heavily
+	 * quantised) data from giving 0. */
+	{
+		double range = 0.0, lo = w.y[0], hi = w.y[0];
+		double *bn = w.nd2 + n, *bd = bn + nb; /* block levels */
+		for (size_t i = 0; i < n; i++) {
+			if (w.y[i] < lo)
+				lo = w.y[i];
+			if (w.y[i] > hi)
+				hi = w.y[i];
+		}
+		range = hi - lo;
+		sigma = noise_of(w.y, n, w.scratch);
+		if (sigma < 1e-5 * range)
+			sigma = 1e-5 * range;
+		if (sigma <= 0.0)
+			sigma = 1e-12;
+		for (size_t b = 0; b < nb; b++) {
+			size_t a = b * NOISE_BLOCK, e = a + NOISE_BLOCK, m = 0;
+			if (e > n)
+				e = n;
+			/* Include a neighbour point each side so every block has
+			 * second differences. */
+			size_t a1 = a > 0 ? a - 1 : 0, e1 = e < n ? e + 1 : n;
+			double sb = (e1 - a1 >= 3) ? noise_of(w.y + a1, e1 - a1, w.scratch) : sigma;
+			bn[b] = (sb > sigma ? sb : sigma) * gain0;
+			for (size_t i = a; i < e; i++)
+				w.scratch[m++] = fabs(w.d2[i]);
+			sb = 1.4826 * median_inplace(w.scratch, m);
+			bd[b] = sb > sigma * gain2 ? sb : sigma * gain2;
+			if (bn[b] < bd[b] * gain0 / gain2)
+				bn[b] = bd[b] * gain0 / gain2;
+		}
+		for (size_t i = 0; i < n; i++) {
+			size_t b = i / NOISE_BLOCK;
+			w.noise[i] = med3(bn, nb, b);
+			w.nd2[i] = med3(bd, nb, b);
+		}
+	}
+
+	pl = irr_peaks__new();
+	if (!pl) {
+		rc = irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
+		goto done;
+	}
+	pl->noise = sigma;
+	pl->range_low = x0[0];
+	pl->range_high = x0[n0 - 1];
+	pl->spacing = dx;
+	pl->smooth_cm = (2 * half) * dx;
+	if (nsat) {
+		pl->sat = malloc(2 * nsat * sizeof(double));
+		if (!pl->sat) {
+			rc = irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
+			goto done;
+		}
+		memcpy(pl->sat, sat, 2 * nsat * sizeof(double));
+		pl->nsat = nsat;
+	}
+
+	/* Maxima by prominence. */
+	prominence_bases(w.c, n, w.lb, w.rb, w.stk, w.smin);
+	{
+		double hmax = 0.0;
+		double guard = (2 * half + 2) * dx;
+		memset(w.keep, 0, n);
+		for (size_t i = 1; i + 1 < n; i++) {
+			if (!(w.c[i] > w.c[i - 1] && w.c[i] >= w.c[i + 1]))
+				continue;
+			double base = w.lb[i] > w.rb[i] ? w.lb[i] : w.rb[i];
+			double prom = w.c[i] - base;
+			if (prom < o->min_snr * w.noise[i])
+				continue;
+			if (w.c[i] < o->min_snr * w.noise[i])
+				continue;
+			if (in_saturated(w.x[i], sat, nsat, guard))
+				continue;
+			w.keep[i] = 1;
+			if (w.c[i] > hmax)
+				hmax = w.c[i];
+		}
+		for (size_t k = 0; k < nsat; k++)
+			for (size_t i = 0; i < n; i++)
+				if (w.x[i] >= sat[2 * k] && w.x[i] <= sat[2 * k + 1] && w.c[i] > hmax)
+					hmax = w.c[i];
+		/* The relative floor is applied now, before widths and valleys
+		 * are measured, so that ripple on a broad band (dropped here)
+		 * does not cut the broad band's width short. A maximum is judged
+		 * by its own size (prominence), so a wiggle on a strong band's
+		 * flank does not pass for a band. */
+		for (size_t i = 1; i + 1 < n; i++)
+			if (w.keep[i] && w.c[i] - (w.lb[i] > w.rb[i] ? w.lb[i] : w.rb[i]) <
+			                     o->min_rel_height * hmax)
+				w.keep[i] = 0;
+	}
+
+	/* Measure each kept maximum. Valleys between neighbouring kept maxima
+	 * bound the width walk and the area. */
+	{
+		size_t *kidx = w.stk; /* reuse: indices of kept maxima */
+		size_t nk = 0;
+		for (size_t i = 0; i < n; i++)
+			if (w.keep[i])
+				kidx[nk++] = i;
+		for (size_t q = 0; q < nk; q++) {
+			size_t i = kidx[q];
+			size_t lv, rv; /* valley indices */
+			irr_peak p;
+			double off, h;
+			/* Left valley: argmin of c between the previous kept maximum
+			 * (or the start) and i; likewise right. */
+			{
+				size_t a = q > 0 ? kidx[q - 1] : 0, j;
+				/* A saturated range is a wall: its band is not ours. */
+				lv = i;
+				for (j = i; j > a && !in_saturated(w.x[j - 1], sat, nsat, 0.0); j--)
+					if (w.c[j - 1] < w.c[lv])
+						lv = j - 1;
+				size_t b = q + 1 < nk ? kidx[q + 1] : n - 1;
+				rv = i;
+				for (j = i; j < b && !in_saturated(w.x[j + 1], sat, nsat, 0.0); j++)
+					if (w.c[j + 1] < w.c[rv])
+						rv = j + 1;
+			}
+			interp3(w.c, i, 1, &off, &h);
+			memset(&p, 0, sizeof p);
+			p.position = x_at(w.x, n, (double)i + off);
+			p.height = h;
+			p.prominence = h - (w.lb[i] > w.rb[i] ? w.lb[i] : w.rb[i]);
+			/* Width at half height above the baseline, each side walked
+			 * only down to the valley that parts it from the next band; a
+			 * side that does not get there is mirrored from the other. */
+			/* Width: at half height above the baseline (each side walked
+			 * only down to the valley that parts it from the next band; a
+			 * side that does not get there is mirrored from the other),
+			 * unless the band stands on a pedestal (a sharp C-H band on a
+			 * broad O-H band), seen as a half-height width much larger
+			 * than the width at half prominence: then the latter, which
+			 * is the sharp band's own. */
+			{
+				double lo1, hi1, lo2, hi2;
+				int ok1 = width_at(&w, n, i, lv, rv, p.position, 0.5 * h, &lo1, &hi1);
+				int ok2 = width_at(&w, n, i, lv, rv, p.position, h - 0.5 * p.prominence, &lo2, &hi2);
+				if (ok1 && (!ok2 || hi1 - lo1 <= 1.5 * (hi2 - lo2))) {
+					p.low = lo1;
+					p.high = hi1;
+				} else if (ok1) {
+					p.low = lo2;
+					p.high = hi2;
+				} else {
+					/* Half height is not reached on either side (a band
+					 * between stronger neighbours): estimate from the
+					 * curvature at the top, between the Lorentzian
+					 * (8h/|y''|) and Gaussian (8 ln2 h/|y''|) relations,
+					 * but never below the width at half prominence. */
+					double curv = -w.d2[i] / (dx * dx);
+					double fw = curv > 0.0 ? sqrt(6.8 * h / curv) : 0.0;
+					if (ok2 && fw < hi2 - lo2)
+						fw = hi2 - lo2;
+					p.low = p.position - 0.5 * fw;
+					p.high = p.position + 0.5 * fw;
+				}
+				p.fwhm = p.high - p.low;
+			}
+			/* Area above the line joining the two valleys (a band on a
+			 * broad neighbour does not get the neighbour's area). */
+			{
+				double a = 0.0, x1 = w.x[lv], x2 = w.x[rv];
+				double y1 = w.c[lv] > 0.0 ? w.c[lv] : 0.0, y2 = w.c[rv] > 0.0 ? w.c[rv] : 0.0;
+				double sl = x2 > x1 ? (y2 - y1) / (x2 - x1) : 0.0;
+				for (size_t j = lv; j < rv; j++) {
+					double u = w.c[j] - (y1 + sl * (w.x[j] - x1));
+					double v = w.c[j + 1] - (y1 + sl * (w.x[j + 1] - x1));
+					if (u < 0.0)
+						u = 0.0;
+					if (v < 0.0)
+						v = 0.0;
+					a += 0.5 * (u + v) * (w.x[j + 1] - w.x[j]);
+				}
+				p.area = a;
+			}
+			if ((rc = irr_peaks__push(pl, &p)) != IRR_OK) {
+				irr_error_set(err, rc, name, 0, "out of memory");
+				goto done;
+			}
+		}
+
+		/* Shoulders: minima of the second derivative that form their own
+		 * lobe (prominence of -d2 above its noise) and are not the lobe of
+		 * a kept maximum (each maximum owns the significant lobe nearest to
+		 * it). */
+		if (o->shoulders && nk > 0) {
+			double *nd2 = w.scratch;
+			double guard = (2 * half + 2) * dx;
+			size_t *sig = w.stk + nk, ns = 0; /* significant lobes, after kidx */
+			for (size_t i = 0; i < n; i++)
+				nd2[i] = -w.d2[i];
+			/* w.stk holds kidx and sig; the stack is stk2. */
+			prominence_bases(nd2, n, w.lb, w.rb, w.stk2, w.smin);
+			for (size_t i = 1; i + 1 < n; i++) {
+				if (!(nd2[i] > nd2[i - 1] && nd2[i] >= nd2[i + 1] && nd2[i] > 0.0))
+					continue;
+				double base = w.lb[i] > w.rb[i] ? w.lb[i] : w.rb[i];
+				if (nd2[i] - base < SHOULDER_SNR_FACTOR * o->min_snr * w.nd2[i])
+					continue;
+				sig[ns++] = i;
+			}
+			/* Each kept maximum claims the nearest significant lobe. */
+			for (size_t q = 0, j = 0; q < nk; q++) {
+				size_t k = kidx[q];
+				while (j + 1 < ns && sig[j + 1] <= k)
+					j++;
+				if (ns == 0)
+					break;
+				size_t best = j;
+				if (j + 1 < ns && (sig[j] > k ? sig[j] - k : k - sig[j]) > sig[j + 1] - k)
+					best = j + 1;
+				w.keep[sig[best]] |= 2;
+			}
+			for (size_t q = 0; q < ns; q++) {
+				size_t i = sig[q];
+				if (w.keep[i] & 3)
+					continue;
+				if (w.c[i] < o->min_snr * w.noise[i])
+					continue;
+				/* Next to a maximum (kept or not) it is that maximum's
+				 * top, not a separate band. */
+				{
+					int near = 0;
+					for (size_t j = i > 2 ? i - 2 : 1; j <= i + 2 && j + 1 < n; j++)
+						if (w.c[j] > w.c[j - 1] && w.c[j] >= w.c[j + 1])
+							near = 1;
+					if (near)
+						continue;
+				}
+				if (in_saturated(w.x[i], sat, nsat, guard))
+					continue;
+				{
+					irr_peak p;
+					double off, v;
+					interp3(nd2, i, 0, &off, &v);
+					memset(&p, 0, sizeof p);
+					p.position = x_at(w.x, n, (double)i + off);
+					p.height = w.c[i];
+					p.low = p.high = p.position;
+					p.shoulder = 1;
+					if ((rc = irr_peaks__push(pl, &p)) != IRR_OK) {
+						irr_error_set(err, rc, name, 0, "out of memory");
+						goto done;
+					}
+				}
+			}
+		}
+	}
+
+	/* Saturated ranges: the band is there and strong; its centre is the best
+	 * position; height is the clipped level above the baseline (a lower
+	 * bound); width and area are unknown (0). */
+	for (size_t k = 0; k < nsat; k++) {
+		irr_peak p;
+		double lo = sat[2 * k], hi = sat[2 * k + 1];
+		double t = (0.5 * (lo + hi) - w.x[0]) / dx;
+		size_t i;
+		memset(&p, 0, sizeof p);
+		p.position = 0.5 * (lo + hi);
+		p.low = lo;
+		p.high = hi;
+		p.saturated = 1;
+		if (t < 0.0)
+			t = 0.0;
+		if (t > (double)(n - 1))
+			t = (double)(n - 1);
+		i = (size_t)(t + 0.5);
+		if (i >= n)
+			i = n - 1;
+		p.height = w.c[i] > 0.0 ? w.c[i] : 0.0;
+		if ((rc = irr_peaks__push(pl, &p)) != IRR_OK) {
+			irr_error_set(err, rc, name, 0, "out of memory");
+			goto done;
+		}
+	}
+
+	irr_peaks__classify(pl, o);
+	/* Drop what is below the relative floor (never a saturated band). */
+	{
+		size_t m = 0;
+		double hmax = 0.0;
+		for (size_t i = 0; i < pl->count; i++)
+			if (pl->peaks[i].height > hmax)
+				hmax = pl->peaks[i].height;
+		/* Shoulders have no prominence; they are judged by height. */
+		for (size_t i = 0; i < pl->count; i++) {
+			const irr_peak *p = &pl->peaks[i];
+			if (!p->shoulder || p->height >= o->min_rel_height * hmax)
+				pl->peaks[m++] = *p;
+		}
+		pl->count = m;
+	}
+	irr_peaks__sort(pl);
+	rc = IRR_OK;
+done:
+	free(w.block);
+	if (rc != IRR_OK) {
+		irr_peaklist_free(pl);
+		return rc;
+	}
+	*out = pl;
+	return IRR_OK;
+}
+
+/* ---- from a spectrum ------------------------------------------------------ */
+
+int irr_peaks_pick(irr_peaklist **out, const irr_spectrum *s,
+                   const irr_peak_options *o, irr_error *err)
+{
+	size_t nsat, n;
+	double *sat = NULL;
+	const char *name;
+	int rc;
+	if (out)
+		*out = NULL;
+	if (!out || !s)
+		return irr_error_set(err, IRR_EINPUT, "", 0, "no spectrum");
+	name = irr_spectrum_name(s);
+	if (!irr_spectrum_is_normalised(s))
+		return irr_error_set(err, IRR_EINPUT, name, 0,
+		                     "spectrum is not normalised (call irr_spectrum_normalise first)");
+	n = irr_spectrum_points(s);
+	nsat = irr_spectrum_saturated_count(s);
+	if (nsat) {
+		sat = malloc(2 * nsat * sizeof *sat);
+		if (!sat)
+			return irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
+		for (size_t k = 0; k < nsat; k++)
+			irr_spectrum_saturated_range(s, k, &sat[2 * k], &sat[2 * k + 1]);
+	}
+	rc = irr_peaks__pick_xy(out, irr_spectrum_x(s), irr_spectrum_y(s), n, sat, nsat,
+	                        o, name, err);
+	free(sat);
+	if (rc == IRR_OK) {
+		double lo, hi;
+		irr_spectrum_range(s, &lo, &hi);
+		if (hi > lo) {
+			(*out)->range_low = lo;
+			(*out)->range_high = hi;
+		}
+	}
+	return rc;
+}

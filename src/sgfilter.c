@@ -1,0 +1,170 @@
+/* sgfilter.c: Savitzky-Golay smoothing and derivatives for the peak picker.
+ *
+ * Method: A. Savitzky, M. J. E. Golay, "Smoothing and Differentiation of
+ * Data by Simplified Least Squares Procedures", Anal. Chem. 36 (1964) 1627.
+ * The coefficients are computed here for any window and degree from the
+ * normal equations of the local polynomial fit (rather than taken from the
+ * paper's tables, which have known misprints and stop at 25 points), and
+ * the ends are handled by evaluating the first and last full window's
+ * polynomial off-centre, so no padding invents data. */
+#include "peakpick.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#define SG_MAX_ORDER 8
+
+/* Solves the (order+1)-square system g z = w in place by Gaussian
+ * elimination with partial pivoting; g is row-major. Returns 0 or -1. */
+static int solve_small(double *g, double *w, int m)
+{
+	for (int col = 0; col < m; col++) {
+		int piv = col;
+		for (int r = col + 1; r < m; r++)
+			if (fabs(g[r * m + col]) > fabs(g[piv * m + col]))
+				piv = r;
+		if (fabs(g[piv * m + col]) < 1e-300)
+			return -1;
+		if (piv != col) {
+			for (int k = 0; k < m; k++) {
+				double t = g[col * m + k];
+				g[col * m + k] = g[piv * m + k];
+				g[piv * m + k] = t;
+			}
+			double t = w[col];
+			w[col] = w[piv];
+			w[piv] = t;
+		}
+		for (int r = col + 1; r < m; r++) {
+			double f = g[r * m + col] / g[col * m + col];
+			if (f == 0.0)
+				continue;
+			for (int k = col; k < m; k++)
+				g[r * m + k] -= f * g[col * m + k];
+			w[r] -= f * w[col];
+		}
+	}
+	for (int r = m - 1; r >= 0; r--) {
+		double s = w[r];
+		for (int k = r + 1; k < m; k++)
+			s -= g[r * m + k] * w[k];
+		w[r] = s / g[r * m + r];
+	}
+	return 0;
+}
+
+int irr_sg__coefficients(int half, int order, int deriv, int at, double *c)
+{
+	int m = order + 1;
+	double g[(SG_MAX_ORDER + 1) * (SG_MAX_ORDER + 1)];
+	double w[SG_MAX_ORDER + 1];
+	double scale;
+	if (half < 1 || order < 0 || order > SG_MAX_ORDER || order > 2 * half ||
+	    deriv < 0 || deriv > order || at < -half || at > half)
+		return IRR_EINPUT;
+	/* The abscissa is scaled to u = j/half so the normal equations stay
+	 * well conditioned for wide windows and high degrees. */
+	scale = (double)half;
+	for (int a = 0; a < m; a++)
+		for (int b = 0; b < m; b++) {
+			double s = 0.0;
+			for (int j = -half; j <= half; j++)
+				s += pow((double)j / scale, a + b);
+			g[a * m + b] = s;
+		}
+	/* w_k = d^deriv/du^deriv u^k at u = at/half. */
+	{
+		double u = (double)at / scale;
+		for (int k = 0; k < m; k++) {
+			if (k < deriv) {
+				w[k] = 0.0;
+				continue;
+			}
+			double f = 1.0;
+			for (int q = 0; q < deriv; q++)
+				f *= (double)(k - q);
+			w[k] = f * pow(u, k - deriv);
+		}
+	}
+	if (solve_small(g, w, m) != 0)
+		return IRR_EINPUT;
+	for (int j = -half; j <= half; j++) {
+		double u = (double)j / scale, s = 0.0, p = 1.0;
+		for (int k = 0; k < m; k++) {
+			s += w[k] * p;
+			p *= u;
+		}
+		/* Back from d/du to d/d(index). */
+		c[j + half] = s / pow(scale, deriv);
+	}
+	return IRR_OK;
+}
+
+double irr_sg__noise_gain(int half, int order, int deriv)
+{
+	double c[2 * 64 + 1], s = 0.0;
+	if (half > 64 || irr_sg__coefficients(half, order, deriv, 0, c) != IRR_OK)
+		return 1.0;
+	for (int j = 0; j <= 2 * half; j++)
+		s += c[j] * c[j];
+	return sqrt(s);
+}
+
+int irr_sg__apply(const double *y, size_t n, int half, int order, int deriv,
+                  double *out)
+{
+	size_t w;
+	double *c;
+	if (!y || !out || n == 0 || half < 1 || order < 0 || deriv < 0 || deriv > order)
+		return IRR_EINPUT;
+	/* A window longer than the data shrinks to fit; if even that cannot
+	 * carry the polynomial, the data are too short to filter. */
+	if ((size_t)(2 * half + 1) > n)
+		half = (int)((n - 1) / 2);
+	if (half < 1 || order > 2 * half) {
+		if (deriv == 0) {
+			memcpy(out, y, n * sizeof *out);
+			return IRR_OK;
+		}
+		return IRR_EINPUT;
+	}
+	w = (size_t)(2 * half + 1);
+	c = malloc(w * sizeof *c);
+	if (!c)
+		return IRR_ENOMEM;
+	if (irr_sg__coefficients(half, order, deriv, 0, c) != IRR_OK) {
+		free(c);
+		return IRR_EINPUT;
+	}
+	for (size_t i = (size_t)half; i + (size_t)half < n; i++) {
+		const double *p = y + i - (size_t)half;
+		double s = 0.0;
+		for (size_t j = 0; j < w; j++)
+			s += c[j] * p[j];
+		out[i] = s;
+	}
+	/* Ends: the first (last) full window's polynomial at offsets -half..-1
+	 * (1..half). */
+	for (int k = 0; k < half; k++) {
+		double s;
+		if (irr_sg__coefficients(half, order, deriv, k - half, c) != IRR_OK) {
+			free(c);
+			return IRR_EINPUT;
+		}
+		s = 0.0;
+		for (size_t j = 0; j < w; j++)
+			s += c[j] * y[j];
+		out[k] = s;
+		if (irr_sg__coefficients(half, order, deriv, half - k, c) != IRR_OK) {
+			free(c);
+			return IRR_EINPUT;
+		}
+		s = 0.0;
+		for (size_t j = 0; j < w; j++)
+			s += c[j] * y[n - w + j];
+		out[n - 1 - (size_t)k] = s;
+	}
+	free(c);
+	return IRR_OK;
+}
