@@ -235,12 +235,13 @@ static long line_of(const char *buf, size_t off)
 	return line;
 }
 
-/* Line of `"id": "<id>"` in the text: cJSON keeps no positions, and a
- * chemist fixing a table wants the line of the group, not just its name. */
-static long line_of_id(const char *buf, const char *id)
+/* Line of `"id": "<id>"` in the text, searching from *from (groups come in
+ * text order, so a repeated id is found at its second place): cJSON keeps
+ * no positions, and a chemist fixing a table wants the line of the group. */
+static long line_of_id(const char *buf, const char **from, const char *id)
 {
 	size_t idlen = strlen(id);
-	for (const char *p = strstr(buf, "\"id\""); p; p = strstr(p + 1, "\"id\"")) {
+	for (const char *p = strstr(*from, "\"id\""); p; p = strstr(p + 1, "\"id\"")) {
 		const char *q = p + 4;
 		while (*q == ' ' || *q == '\t' || *q == '\r' || *q == '\n')
 			q++;
@@ -248,8 +249,10 @@ static long line_of_id(const char *buf, const char *id)
 			continue;
 		while (*q == ' ' || *q == '\t' || *q == '\r' || *q == '\n')
 			q++;
-		if (*q == '"' && !strncmp(q + 1, id, idlen) && q[1 + idlen] == '"')
+		if (*q == '"' && !strncmp(q + 1, id, idlen) && q[1 + idlen] == '"') {
+			*from = q + 1;
 			return line_of(buf, (size_t)(p - buf));
+		}
 	}
 	return 0;
 }
@@ -260,6 +263,7 @@ typedef struct ctx {
 	irr_tables *t;
 	const char *path;
 	const char *text;
+	const char *cursor;     /* where the search for the next group id starts */
 	const cJSON *sources;   /* the file's "sources" abbreviations, or NULL */
 	const char *gid;        /* group being read ("" before its id is known) */
 	long gline;
@@ -598,7 +602,7 @@ static int parse_group(ctx *c, const cJSON *jg, irr_table_group *g)
 		return fail(c, "must be an object");
 	if ((rc = get_string(c, jg, "group", "id", 1, &s)))
 		return rc;
-	c->gline = line_of_id(c->text, s);
+	c->gline = line_of_id(c->text, &c->cursor, s);
 	if (!valid_id(s))
 		return fail(c, "id '%s' must be 1-39 characters of letters, digits, '_', '-', '.'", s);
 	if (!(g->id = arena_strdup(c->t, s)))
@@ -670,11 +674,12 @@ static int load_file(irr_tables *t, const char *path, int replace, irr_error *er
 	char *text = NULL;
 	size_t len = 0;
 	cJSON *root = NULL;
-	ctx c = {t, path, NULL, NULL, "", 0, -1, err};
+	ctx c = {t, path, NULL, NULL, NULL, "", 0, -1, err};
 	int rc = read_file(path, &text, &len, err);
 	if (rc)
 		return rc;
 	c.text = text;
+	c.cursor = text;
 	irr_sha256_update(&t->sha, text, len);
 	if (len == 0) {
 		rc = irr_error_set(err, IRR_EINPUT, path, 0, "empty table file");
