@@ -9,30 +9,37 @@
  *   O-H:      alcohol_primary, alcohol_secondary, alcohol_tertiary  [hbond_intra]
  *             phenol [hbond_intra], carboxylic_acid [conjugated], carboxylate
  *   C=O:      ketone [conjugated, ring_size], diketone_1_2, diketone_1_3 (enol form
- *             included), quinone, aldehyde [conjugated, aryl], ester [conjugated,
+ *             included; hbond_intra = 1 for the chelated enol form), quinone,
+ *             aldehyde [conjugated, aryl], ester [conjugated,
  *             aryl = vinyl/aryl on the O side], lactone [ring_size, conjugated],
  *             formate, anhydride [ring_size, conjugated], acid_halide [conjugated],
  *             amide [n_h = 2 primary, 1 secondary, 0 tertiary; conjugated],
  *             lactam [ring_size, n_h], imide [ring_size, n_h], urea [n_h],
  *             carbamate [n_h], carbonate [ring_size]
  *   N:        amine [n_h = 2/1/0; aryl = N on an aromatic ring], ammonium [n_h =
- *             H on N+: 3/2/1/0], imine, oxime, hydrazone, nitro [aryl], nitroso,
+ *             H on N+: 3/2/1/0; also an amine written with a separate HCl, HBr
+ *             or HI component, e.g. "CCN.Cl"], imine, oxime, hydrazone, nitro [aryl], nitroso,
  *             azide, diazo, isocyanate, isothiocyanate, carbodiimide,
  *             nitrile [conjugated], isonitrile
  *   C-C:      alkyne_terminal, alkyne_internal,
  *             alkene [pattern = vinyl | vinylidene | cis | trans | trisubstituted |
- *             tetrasubstituted | unknown (1,2-disubstituted, stereo not given);
- *             conjugated; ring_size when the C=C is in a ring], allene
+ *             tetrasubstituted | unknown (1,2-disubstituted, stereo not given) |
+ *             unsubstituted (ethylene); conjugated (with C=C, aromatic ring, and
+ *             for C=C also C=O, C=N or C#N); ring_size when the C=C is in a ring;
+ *             a ring C=C in a ring of <= 7 atoms is cis], allene
  *   aromatic: benzene_ring [pattern = mono | ortho | meta | para | 1,2,3 | 1,2,4 |
- *             1,3,5 | penta_hexa | other; one per six-membered all-carbon
+ *             1,3,5 | penta_hexa | other (tetrasubstituted) | unsubstituted;
+ *             one per six-membered all-carbon
  *             aromatic ring; fused rings count their fusion atoms as
  *             substituted], pyridine_ring, pyrrole_nh (pyrrole/indole/imidazole
  *             N-H), furan_ring, thiophene_ring
  *   alkyl:    methyl, methylene, methine (counts in `count`), gem_dimethyl,
  *             tert_butyl, isopropyl, long_chain (>= 4 contiguous CH2)
- *   ethers:   ether [aryl = 0 dialkyl, 1 aryl alkyl, 2 diaryl], epoxide, peroxide
+ *   ethers:   ether [aryl = 0 dialkyl, 1 aryl alkyl, 2 diaryl; vinyl counts as
+ *             aryl], epoxide, peroxide
  *   S:        thiol, sulfide, disulfide, sulfoxide, sulfone, sulfonamide [n_h],
- *             sulfonate_ester, sulfonic_acid, sulfonyl_chloride, thiocarbonyl
+ *             sulfonate_ester, sulfonic_acid, sulfonate (the anion),
+ *             sulfonyl_chloride, thiocarbonyl
  *   P:        phosphine, phosphine_oxide, phosphate, phosphonate, p_h
  *   Si, B:    si_h, si_methyl, siloxane (Si-O-Si or Si-O-C), boronic_acid,
  *             boronic_ester
@@ -40,7 +47,11 @@
  *   other:    water (a water molecule as a component, e.g. a hydrate)
  *
  * A group entry merges the instances with the same id and attributes;
- * `count` says how many there were and `atoms` lists all their atoms. */
+ * `count` says how many there were and `atoms` lists all their atoms.
+ * Counts (irr_counts) follow the SMILES as written (no salt inference).
+ * Cautions: azide, acyl/sulfonyl azide, diazo, diazonium, peroxide, two or
+ * more nitro groups, nitrate ester, isocyanate, isonitrile, N-nitroso,
+ * cyanide (HCN, CN-), perchlorate, hydrazine. */
 #ifndef IRRECON_PERCEIVE_H
 #define IRRECON_PERCEIVE_H
 
