@@ -273,7 +273,9 @@ void irr_check_set_options(irr_check *c, const irr_check_options *o)
 	free(c->sample_id);
 	free(c->input_name);
 	free(c->input_sha256);
-	if ((c->solvents_file || e) && (!e || !c->solvents_file || strcmp(e, c->solvents_file))) {
+	/* A new library only while no substance borrows from the old one. */
+	if (!c->nothers && (c->solvents_file || e) &&
+	    (!e || !c->solvents_file || strcmp(e, c->solvents_file))) {
 		lib_release(c->sl);
 		c->sl = NULL;
 	}
