@@ -5,9 +5,15 @@
 #include "cli/cli.h"
 #include "irrecon/common.h"
 
+int cmd_check(int argc, char **argv);
+int cmd_peaks(int argc, char **argv);
+int cmd_rank(int argc, char **argv);
 int cmd_synth(int argc, char **argv);
 
 static const cli_command commands[] = {
+	{"check", cmd_check, "check a spectrum against a proposed structure (the main job)"},
+	{"rank", cmd_rank, "order candidate structures by how well they fit one spectrum"},
+	{"peaks", cmd_peaks, "pick the bands of a spectrum (table or JSON)"},
 	{"synth", cmd_synth, "write the spectrum a structure or mixture should give"},
 	{NULL, NULL, NULL}
 };
