@@ -129,13 +129,31 @@ static irr_yunits header_y_units(const char *p, size_t len)
 	return IRR_Y_UNKNOWN;
 }
 
-/* 1 = micrometres, 0 = cm-1 or not said. */
-static int header_x_micrometers(const char *p, size_t len)
+/* `needle` as a unit token: not inside a longer word ("um" in "spectrum"
+ * is not micrometres). */
+static int ci_token(const char *p, size_t len, const char *needle)
+{
+	size_t m = strlen(needle);
+	for (size_t i = 0; i + m <= len; i++) {
+		size_t k = 0;
+		while (k < m && tolower((unsigned char)p[i + k]) == needle[k])
+			k++;
+		if (k == m && (i == 0 || !isalpha((unsigned char)p[i - 1])) &&
+		    (i + m == len || !isalpha((unsigned char)p[i + m])))
+			return 1;
+	}
+	return 0;
+}
+
+/* 0 = cm-1 or not said, 1 = micrometres, -1 = nanometres (not infrared). */
+static int header_x_units(const char *p, size_t len)
 {
 	if (ci_contains(p, len, "cm-1") || ci_contains(p, len, "cm^-1") ||
 	    ci_contains(p, len, "1/cm") || ci_contains(p, len, "wavenumber"))
 		return 0;
-	return ci_contains(p, len, "um") || ci_contains(p, len, "\xc2\xb5m") ||
+	if (ci_token(p, len, "nm") || ci_contains(p, len, "nanomet"))
+		return -1;
+	return ci_token(p, len, "um") || ci_contains(p, len, "\xc2\xb5m") ||
 	       ci_contains(p, len, "micro") || ci_contains(p, len, "wavelength");
 }
 
@@ -221,7 +239,13 @@ int irr_csv__read(irr_spectrum **out, const char *data, size_t len,
 		    parse_field(f[0], fl[0], decimal_comma, &vx) < 0 && !looks_non_finite(f[0], fl[0])) {
 			/* A header line: names the columns and perhaps the units. */
 			have_header = 1;
-			hdr_um = header_x_micrometers(f[0], fl[0]);
+			hdr_um = header_x_units(f[0], fl[0]);
+			if (hdr_um < 0) {
+				rc = irr_error_set(err, IRR_EINPUT, name, l.no,
+				                   "X column '%.*s' is in nanometres: not an infrared axis (cm-1 or micrometres)",
+				                   (int)(fl[0] > 60 ? 60 : fl[0]), f[0]);
+				goto done;
+			}
 			if (nf >= 2)
 				hdr_units = header_y_units(f[1], fl[1]);
 			/* The data may use another delimiter than the header
@@ -283,7 +307,7 @@ int irr_csv__read(irr_spectrum **out, const char *data, size_t len,
 	}
 	if (n == 0) {
 		rc = irr_error_set(err, IRR_EINPUT, name, last_no ? last_no : 1,
-		                   "no data: %s", len == 0 ? "the file is empty"
+		                   "no data points: %s", len == 0 ? "the file is empty"
 		                   : "no line holds an X,Y pair of numbers");
 		goto done;
 	}

@@ -465,6 +465,11 @@ typedef struct decoded {
 	double mismatch_x, mismatch_expect;
 	long last_line;
 	int fixed;              /* cap is ##NPOINTS: more is an error, not a limit */
+	long bad_line;          /* the line whose count the next abscissa contradicts */
+	size_t bad_count;
+	double bad_implied;
+	const char *bad_suspect;
+	size_t bad_suspect_len;
 } decoded;
 
 static int push_value(decoded *d, double v, size_t limit, const char *name, long line,
@@ -491,22 +496,27 @@ static int push_value(decoded *d, double v, size_t limit, const char *name, long
 	return IRR_OK;
 }
 
-static int token_error(const token *t, const char *name, long line, const char *rec,
-                       irr_error *err)
+static int token_error(const token *t, const char *end, const char *name, long line,
+                       const char *rec, irr_error *err)
 {
+	int len = (int)(end - t->at);
+	if (len > 40)
+		len = 40;
+	if (len < 1)
+		len = 1;
 	if (t->kind == TK_MISSING)
 		return irr_error_set(err, IRR_EINPUT, name, line,
 		                     "missing value '?' in ##%s", rec);
 	if (t->kind == TK_NONFINITE)
 		return irr_error_set(err, IRR_EINPUT, name, line,
-		                     "number out of range in ##%s", rec);
+		                     "number '%.*s' in ##%s is out of range (not finite)", len, t->at, rec);
 	{
 		unsigned char c = (unsigned char)*t->at;
 		if (c >= 0x20 && c < 0x7f)
 			return irr_error_set(err, IRR_EINPUT, name, line,
 			                     "unexpected character '%c' in ##%s", c, rec);
 		return irr_error_set(err, IRR_EINPUT, name, line,
-		                     "unexpected byte 0x%02x in ##%s", c, rec);
+		                     "unexpected character (byte 0x%02x) in ##%s", c, rec);
 	}
 }
 
@@ -534,6 +544,26 @@ static const char *line_end(const char *p, const char *e, const char **data_end)
 	return le;
 }
 
+/* The error for a point count that disagrees with ##NPOINTS. When a line's
+ * abscissa already showed where the count went wrong, that line is named,
+ * with the text that most likely caused it. */
+static int npoints_error(const decoded *d, size_t np, int more, long line_now,
+                         const char *name, irr_error *err)
+{
+	if (d->bad_line)
+		return irr_error_set(err, IRR_EINPUT, name, d->bad_line,
+		                     "##NPOINTS=%zu but ##XYDATA holds %s: this line holds %zu Y values where its X and the next line's X imply %.0f%s%.*s%s",
+		                     np, more ? "more values" : "fewer values", d->bad_count,
+		                     d->bad_implied, d->bad_suspect_len ? " (look at '" : "",
+		                     (int)d->bad_suspect_len, d->bad_suspect ? d->bad_suspect : "",
+		                     d->bad_suspect_len ? "')" : "");
+	if (more)
+		return irr_error_set(err, IRR_EINPUT, name, line_now,
+		                     "##NPOINTS=%zu but ##XYDATA holds more values", np);
+	return irr_error_set(err, IRR_EINPUT, name, line_now,
+	                     "##NPOINTS=%zu but ##XYDATA holds %zu values (truncated?)", np, d->n);
+}
+
 /* ##XYDATA=(X++(Y..Y)). Each line: an abscissa, then ordinates in any
  * ASDF mix. DUP repeats the previous token (a value, or a difference);
  * after a line that ends in DIF form the next line starts with a Y-check
@@ -546,10 +576,12 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 {
 	long line;
 	const char *p = data_start(r, &line), *e = r->end;
-	double last = 0.0, prev_line_x = 0.0;
-	int prev_kind = TK_END, dif_pending = 0, have_prev_line_x = 0;
-	double last_dif = 0.0;
-	int rc;
+	double last = 0.0, prev_line_x = 0.0, last_dif = 0.0;
+	int prev_kind = TK_END, dif_pending = 0, have_prev_line_x = 0, rc;
+	size_t prev_line_start = 0;
+	long prev_line_no = 0;
+	const char *prev_suspect = NULL;
+	size_t prev_suspect_len = 0;
 	if (expect) {
 		/* NPOINTS was checked against the limit before this allocation. */
 		if (!(d->raw = malloc(expect * sizeof *d->raw)))
@@ -559,11 +591,12 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 		limit = expect;
 	}
 	for (; p < e; line++) {
-		const char *de, *le = line_end(p, e, &de), *q = p;
+		const char *de, *le = line_end(p, e, &de), *q = p, *prev_at = NULL;
+		const char *suspect = NULL;
+		size_t suspect_len = 0, line_start_n;
 		token t;
 		double lx;
-		int first_y = 1;
-		size_t line_start_n;
+		int first_y = 1, affn_line = 0, prev_affn = 0;
 		if (line_has_nonfinite_word(q, de))
 			return irr_error_set(err, IRR_EINPUT, name, line,
 			                     "a value is not a finite number (NaN or infinity) in ##XYDATA");
@@ -576,17 +609,37 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 			return t.kind == TK_DIF || t.kind == TK_DUP
 			       ? irr_error_set(err, IRR_EINPUT, name, line,
 			                       "a data line must start with its X value, not a DIF or DUP character")
-			       : token_error(&t, name, line, "XYDATA", err);
+			       : token_error(&t, q, name, line, "XYDATA", err);
 		lx = t.v;
-		if (have_prev_line_x && dx != 0.0 && (lx - prev_line_x) * dx < 0)
+		if (have_prev_line_x && dx != 0.0 && (lx - prev_line_x) * xfactor * dx <= 0)
 			return irr_error_set(err, IRR_EINPUT, name, line,
-			                     "X is not monotonic: this line's X (%.10g) goes back from the previous line's (%.10g)",
+			                     "X is not monotonic: this line's X (%.10g) does not go on from the previous line's (%.10g)",
 			                     lx, prev_line_x);
 		line_start_n = d->n;
 		for (;;) {
 			next_token(&q, de, 0, &t);
 			if (t.kind == TK_END)
 				break;
+			if (first_y && t.kind != TK_ABS) {
+				if (t.kind == TK_DIF || t.kind == TK_DUP)
+					return irr_error_set(err, IRR_EINPUT, name, line,
+					                     "the first Y value of a line is a %s, not an absolute value%s",
+					                     t.kind == TK_DIF ? "DIF difference" : "DUP count",
+					                     dif_pending ? " (after a DIF line it must repeat the last Y as a check)" : "");
+				return token_error(&t, q, name, line, "XYDATA", err);
+			}
+			/* A letter glued to a plain number on a plain-number line is
+			 * the likely culprit if the count goes wrong ("6O" for "60"). */
+			if (affn_line && !suspect && prev_affn && t.kind != TK_ABS &&
+			    t.at > p && t.at[-1] >= '0' && t.at[-1] <= '9') {
+				suspect = prev_at;
+				suspect_len = (size_t)(q - prev_at);
+			}
+			prev_affn = t.kind == TK_ABS && ((*t.at >= '0' && *t.at <= '9') || *t.at == '.' ||
+			                                 *t.at == '+' || *t.at == '-');
+			if (first_y)
+				affn_line = prev_affn;
+			prev_at = t.at;
 			switch (t.kind) {
 			case TK_ABS:
 				if (first_y && dif_pending) {
@@ -600,28 +653,35 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 					break;
 				}
 				last = t.v;
+				if (d->fixed && d->n == d->cap)
+					return npoints_error(d, expect, 1, line, name, err);
 				if ((rc = push_value(d, last, limit, name, line, "values", err)) < 0)
 					return rc;
 				prev_kind = TK_ABS;
 				break;
 			case TK_DIF:
-				if (d->n == 0 || prev_kind == TK_END)
-					return irr_error_set(err, IRR_EINPUT, name, line,
-					                     "a DIF value with no value before it");
 				last += t.v;
 				last_dif = t.v;
+				if (d->fixed && d->n == d->cap)
+					return npoints_error(d, expect, 1, line, name, err);
 				if ((rc = push_value(d, last, limit, name, line, "values", err)) < 0)
 					return rc;
 				prev_kind = TK_DIF;
 				break;
 			case TK_DUP: {
 				double cnt = t.v;
-				if (prev_kind == TK_END || d->n == 0)
-					return irr_error_set(err, IRR_EINPUT, name, line,
-					                     "a DUP count with no value before it");
-				if (cnt < 1 || cnt != floor(cnt) || cnt > (double)limit)
+				if (cnt < 1 || cnt != floor(cnt))
 					return irr_error_set(err, IRR_EINPUT, name, line,
 					                     "bad DUP count %.10g", cnt);
+				if (cnt - 1 > (double)(limit - d->n)) {
+					if (d->fixed)
+						return irr_error_set(err, IRR_EINPUT, name, line,
+						                     "DUP count %.0f goes beyond the limit set by ##NPOINTS=%zu",
+						                     cnt, expect);
+					return irr_error_set(err, IRR_ELIMIT, name, line,
+					                     "DUP count %.0f goes beyond the limit of %zu points",
+					                     cnt, limit);
+				}
 				for (double k = 1; k < cnt; k++) {
 					if (prev_kind == TK_DIF)
 						last += last_dif;
@@ -632,14 +692,15 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 				break;
 			}
 			default:
-				return token_error(&t, name, line, "XYDATA", err);
+				return token_error(&t, q, name, line, "XYDATA", err);
 			}
 			first_y = 0;
 		}
 		if (first_y)
 			return irr_error_set(err, IRR_EINPUT, name, line,
 			                     "a data line with an X value but no Y values");
-		/* The line's abscissa names the X of its first ordinate. */
+		/* The line's abscissa names the X of its first ordinate; when it
+		 * is out of step, the line before holds too many or too few. */
 		{
 			double expect_x = x0 + (double)line_start_n * dx;
 			double tol = 0.5 * fabs(dx) + fabs(xfactor) + 1e-9 * fabs(expect_x);
@@ -651,17 +712,29 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 				d->line_mismatch = line;
 				d->mismatch_x = lx * xfactor;
 				d->mismatch_expect = expect_x;
+				if (have_prev_line_x) {
+					d->bad_line = prev_line_no;
+					d->bad_count = line_start_n - prev_line_start;
+					d->bad_implied = floor((lx - prev_line_x) * xfactor / dx + 0.5);
+					d->bad_suspect = prev_suspect;
+					d->bad_suspect_len = prev_suspect_len;
+				}
 			}
 			d->last_line_x = lx;
 			d->last_line_index = line_start_n;
 		}
 		dif_pending = prev_kind == TK_DIF;
 		prev_line_x = lx;
+		prev_line_start = line_start_n;
+		prev_line_no = line;
+		prev_suspect = suspect;
+		prev_suspect_len = suspect_len;
 		have_prev_line_x = 1;
 		d->last_line = line;
 		p = le < e ? le + 1 : e;
 	}
-	(void)dif_pending;
+	if (d->fixed && d->n != expect && d->n > 0)
+		return npoints_error(d, expect, d->n > expect, d->last_line, name, err);
 	return IRR_OK;
 }
 
@@ -685,7 +758,7 @@ static int decode_pairs(decoded *d, const record *r, int group, size_t limit,
 			if (t.kind == TK_END)
 				break;
 			if (t.kind != TK_ABS)
-				return token_error(&t, name, line, recname, err);
+				return token_error(&t, q, name, line, recname, err);
 			if (k < 2) {
 				if ((rc = push_value(d, t.v, 2 * limit, name, line, "values", err)) < 0)
 					return rc;
@@ -703,13 +776,14 @@ static int decode_pairs(decoded *d, const record *r, int group, size_t limit,
 			}
 			k = (k + 1) % (size_t)group;
 		}
+		/* A group does not run over a line end. */
+		if (k != 0)
+			return irr_error_set(err, IRR_EINPUT, name, line,
+			                     "##%s line ends in the middle of a group: an X without its Y%s",
+			                     recname, group == 3 ? " and width" : "");
 		d->last_line = line;
 		p = le < e ? le + 1 : e;
 	}
-	if (k != 0)
-		return irr_error_set(err, IRR_EINPUT, name, d->last_line ? d->last_line : r->line,
-		                     "##%s ends in the middle of a group of %d values (truncated?)",
-		                     recname, group);
 	return IRR_OK;
 }
 
@@ -794,7 +868,7 @@ static irr_yunits parse_yunits(const char *t, int *known)
 	if (!strcmp(u, "KUBELKAMUNK") || !strcmp(u, "KM"))
 		return IRR_Y_KUBELKA_MUNK;
 	if (!strcmp(u, "ARBITRARYUNITS") || !strcmp(u, "ARBITRARY") || !strcmp(u, "AU") ||
-	    !strcmp(u, "COUNTS"))
+	    !strcmp(u, "ARB.UNITS") || !strcmp(u, "A.U."))
 		return IRR_Y_ARBITRARY;
 	*known = 0;
 	return IRR_Y_UNKNOWN;
@@ -940,15 +1014,43 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 		else if (!strcmp(r->label, "MINY")) hv = &h.miny;
 		else if (!strcmp(r->label, "MAXX")) hv = &h.maxx;
 		else if (!strcmp(r->label, "MINX")) hv = &h.minx;
-		else if (!strcmp(r->label, "XUNITS") && !h.xunits) h.xunits = r;
-		else if (!strcmp(r->label, "YUNITS") && !h.yunits) h.yunits = r;
-		else if ((int)i == b->data_rec) h.data = r;
+		else if (!strcmp(r->label, "XUNITS") || !strcmp(r->label, "YUNITS")) {
+			const record **slot = r->label[0] == 'X' ? &h.xunits : &h.yunits;
+			if (*slot) {
+				char t1[128], t2[128];
+				record_text(*slot, t1, sizeof t1, 1);
+				record_text(r, t2, sizeof t2, 1);
+				if (strcmp(t1, t2) != 0) {
+					rc = irr_error_set(err, IRR_EINPUT, name, r->line,
+					                   "##%s given twice in the block with different values (%s at line %ld, %s here)",
+					                   r->label, t1, (*slot)->line, t2);
+					goto done;
+				}
+			} else {
+				*slot = r;
+			}
+		} else if (!strcmp(r->label, "XYDATA") || !strcmp(r->label, "XYPOINTS") ||
+		           !strcmp(r->label, "PEAKTABLE")) {
+			if ((int)i == b->data_rec) {
+				h.data = r;
+			} else if (!strcmp(r->label, sc.rec[b->data_rec].label)) {
+				rc = irr_error_set(err, IRR_EINPUT, name, r->line,
+				                   "##%s appears twice in the block (first at line %ld)",
+				                   r->label, sc.rec[b->data_rec].line);
+				goto done;
+			}
+		}
 		if (hv) {
 			if (hv->have) {
-				if ((rc = warn(name, err, irr_spectrum__warn(s,
-				             "##%s appears twice in the block; the first (line %ld) is used",
-				             r->label, hv->line))) < 0)
+				hval again;
+				if ((rc = header_number(r, &again, name, err)) < 0)
 					goto done;
+				if (again.v != hv->v) {
+					rc = irr_error_set(err, IRR_EINPUT, name, r->line,
+					                   "##%s given twice in the block with different values (%s at line %ld, %s here)",
+					                   r->label, hv->text, hv->line, again.text);
+					goto done;
+				}
 				continue;
 			}
 			if ((rc = header_number(r, hv, name, err)) < 0)
@@ -960,9 +1062,7 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 		                   "no data record in the block");
 		goto done;
 	}
-	if (b->end_rec < 0 &&
-	    (rc = warn(name, err, irr_spectrum__warn(s, "no ##END= record: the file may be truncated"))) < 0)
-		goto done;
+
 
 	/* Units. */
 	if (h.xunits) {
@@ -981,9 +1081,12 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 		int known;
 		record_text(h.yunits, text, sizeof text, 1);
 		s->units = parse_yunits(text, &known);
-		if (!known && (rc = warn(name, err, irr_spectrum__warn(s,
-		                 "##YUNITS=%s not recognised: Y units will be detected", text))) < 0)
+		if (!known) {
+			rc = irr_error_set(err, IRR_EINPUT, name, h.yunits->line,
+			                   "##YUNITS=%s is not an infrared ordinate (TRANSMITTANCE, %%T, ABSORBANCE, REFLECTANCE, KUBELKA-MUNK or ARBITRARY UNITS)",
+			                   text);
 			goto done;
+		}
 	}
 	s->source_units = s->units;
 
@@ -1174,6 +1277,12 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 			             "##LASTX=%s disagrees with the last X, %.10g", h.lastx.text, s->x[n - 1]))) < 0)
 				goto done;
 		}
+	}
+	/* Checked after the data, whose count says more about a truncation. */
+	if (b->end_rec < 0) {
+		rc = irr_error_set(err, IRR_EINPUT, name, sc.rec[b->title_rec].line,
+		                   "the block has no ##END= record (truncated file?)");
+		goto done;
 	}
 	for (size_t i = 0; i < s->n; i++)
 		if (!isfinite(s->y[i]) || !isfinite(s->x[i])) {

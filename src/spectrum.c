@@ -158,16 +158,18 @@ int irr_spectrum__check_xy(const irr_spectrum *s, const long *lines, irr_error *
 		int up = x[1] > x[0];
 		for (size_t i = 1; i < n; i++) {
 			double d = x[i] - x[i - 1];
-			if (up ? !(d > 0) : !(d < 0)) {
-				char a[40], b[40];
-				irr_format_double(a, sizeof a, x[i - 1], -1);
-				irr_format_double(b, sizeof b, x[i], -1);
+			if (up ? !(d > 0) : !(d < 0))
 				return irr_error_set(err, IRR_EINPUT, s->name, lines ? lines[i] : 0,
-				                     "X is not strictly %s: %s is followed by %s",
-				                     up ? "increasing" : "decreasing", a, b);
-			}
+				                     "X is not monotonic: %.10g is followed by %.10g (X must strictly %s)",
+				                     x[i - 1], x[i], up ? "increase" : "decrease");
 		}
 	}
+	/* Wavenumbers and wavelengths are both positive. */
+	for (size_t i = 0; i < n; i++)
+		if (!(x[i] > 0))
+			return irr_error_set(err, IRR_EINPUT, s->name, lines ? lines[i] : 0,
+			                     "X value %.10g is %s: wavenumbers (and wavelengths) are positive",
+			                     x[i], x[i] < 0 ? "negative" : "zero");
 	return IRR_OK;
 }
 
@@ -225,6 +227,33 @@ static long line_of(const char *data, size_t off)
 		if (data[i] == '\n')
 			line++;
 	return line;
+}
+
+/* UTF-16 text (Windows "Unicode" exports) has a byte order mark, or a NUL
+ * in every other byte of ASCII text. */
+static int looks_like_utf16(const unsigned char *p, size_t len)
+{
+	size_t zeros_even = 0, zeros_odd = 0, n = len < 512 ? len : 512;
+	if (len >= 2 && ((p[0] == 0xFF && p[1] == 0xFE) || (p[0] == 0xFE && p[1] == 0xFF)))
+		return 1;
+	for (size_t i = 0; i < n; i++)
+		if (!p[i]) {
+			if (i % 2)
+				zeros_odd++;
+			else
+				zeros_even++;
+		}
+	return n >= 8 && (zeros_odd >= n / 2 - 1 || zeros_even >= n / 2 - 1);
+}
+
+static int binary_error(const char *data, size_t len, size_t nul_at, const char *name,
+                        irr_error *err)
+{
+	if (looks_like_utf16((const unsigned char *)data, len))
+		return irr_error_set(err, IRR_EINPUT, name, 0,
+		                     "the file is UTF-16 text; save it as ASCII or UTF-8");
+	return irr_error_set(err, IRR_EINPUT, name, line_of(data, nul_at),
+	                     "binary data (a NUL byte), not a JCAMP-DX or CSV text file");
 }
 
 int irr_spectrum__slurp(char **out, size_t *len, const char *path,
@@ -289,9 +318,8 @@ int irr_spectrum__slurp(char **out, size_t *len, const char *path,
 		 * file is read in full. */
 		if (n == 0) {
 			const char *z = memchr(buf, '\0', (size_t)r);
-			if (z) {
-				rc = irr_error_set(err, IRR_EINPUT, path, line_of(buf, (size_t)(z - buf)),
-				                   "binary data (a NUL byte), not a JCAMP-DX or CSV text file");
+			if (z || looks_like_utf16((const unsigned char *)buf, (size_t)r)) {
+				rc = binary_error(buf, (size_t)r, z ? (size_t)(z - buf) : 0, path, err);
 				goto done;
 			}
 		}
@@ -348,9 +376,8 @@ int irr_spectrum_read_memory(irr_spectrum **out, const char *data, size_t len,
 		return irr_error_set(err, IRR_ELIMIT, name, 0,
 		                     "input is %zu bytes, more than the limit of %zu",
 		                     len, irr_spectrum__max_bytes(o));
-	if (len && (z = memchr(data, '\0', len)))
-		return irr_error_set(err, IRR_EINPUT, name, line_of(data, (size_t)(z - data)),
-		                     "binary data (a NUL byte), not a JCAMP-DX or CSV text file");
+	if (len && ((z = memchr(data, '\0', len)) || looks_like_utf16((const unsigned char *)data, len)))
+		return binary_error(data, len, z ? (size_t)(z - data) : 0, name, err);
 	/* The readers rely on a terminating NUL; a caller's buffer need not
 	 * have one. */
 	if (!(copy = malloc(len + 1)))
@@ -385,9 +412,8 @@ int irr_spectrum_read_file(irr_spectrum **out, const char *path,
 	}
 	if ((rc = irr_spectrum__slurp(&buf, &len, path, irr_spectrum__max_bytes(o), err)) < 0)
 		return rc;
-	if (len && (z = memchr(buf, '\0', len)))
-		rc = irr_error_set(err, IRR_EINPUT, path, line_of(buf, (size_t)(z - buf)),
-		                   "binary data (a NUL byte), not a JCAMP-DX or CSV text file");
+	if (len && ((z = memchr(buf, '\0', len)) || looks_like_utf16((const unsigned char *)buf, len)))
+		rc = binary_error(buf, len, z ? (size_t)(z - buf) : 0, path, err);
 	else if (looks_like_jcamp(buf, len))
 		rc = irr_jcamp__read(out, buf, len, path, o, err);
 	else
