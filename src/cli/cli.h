@@ -34,5 +34,6 @@ int cli_write_file_atomic(const char *path, const char *data, size_t len,
                           irr_error *err);
 
 /* Subcommands, one file each (cmd_<name>.c); listed in main.c. */
+int cmd_predict(int argc, char **argv);
 
 #endif

@@ -13,6 +13,7 @@ int cmd_synth(int argc, char **argv);
 static const cli_command commands[] = {
 	{"check", cmd_check, "check a spectrum against a proposed structure (the main job)"},
 	{"rank", cmd_rank, "order candidate structures by how well they fit one spectrum"},
+	{"predict", cmd_predict, "list the bands a structure should show (table or JSON)"},
 	{"peaks", cmd_peaks, "pick the bands of a spectrum (table or JSON)"},
 	{"synth", cmd_synth, "write the spectrum a structure or mixture should give"},
 	{NULL, NULL, NULL}
