@@ -4,7 +4,8 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <sys/stat.h>
+#include <strings.h>
+#include <errno.h>
 
 #include "cli/cli.h"
 #include "irrecon/spectrum_write.h"
@@ -23,8 +24,9 @@ static void help(FILE *f)
 	"predicted band drawn as a Lorentzian line at its typical position, its width\n"
 	"from its shape class and its height from its intensity class.\n\n"
 	"Structures:\n"
-	"  --structure SMILES|FILE   the main compound; it takes the share the\n"
+	"  --structure SMILES        the main compound; it takes the share the\n"
 	"                            components leave (1 - their sum)\n"
+	"  --structure-file FILE     the same, read from FILE (first SMILES in it)\n"
 	"  --component SMILES:SHARE  another compound and its share (0..1); repeatable.\n"
 	"                            Without --structure the shares are rescaled to 1\n\n"
 	"Output:\n"
@@ -85,25 +87,28 @@ static int parse_component(char *s, irr_synth_component *c)
 	return 0;
 }
 
-/* --structure takes a SMILES or a file holding one (first non-blank line
- * that is not a '#' comment; its first word). */
-static int structure_arg(const char *arg, char **smiles, irr_error *err)
+/* --structure-file: the first non-blank line that is not a '#' comment;
+ * its first word. --structure: the argument itself. */
+static int structure_arg(const char *arg, int is_file, char **smiles, irr_error *err)
 {
-	struct stat st;
 	FILE *f;
 	char line[8192];
 	long ln = 0;
 	*smiles = NULL;
-	if (stat(arg, &st) != 0 || !S_ISREG(st.st_mode)) {
+	if (!is_file) {
 		*smiles = strdup(arg);
 		return *smiles ? IRR_OK : irr_error_set(err, IRR_ENOMEM, "", 0, "out of memory");
 	}
 	f = fopen(arg, "r");
 	if (!f)
-		return irr_error_set(err, IRR_EIO, arg, 0, "cannot open");
+		return irr_error_set(err, IRR_EIO, arg, 0, "cannot open: %s", strerror(errno));
 	while (fgets(line, sizeof line, f)) {
 		char *p = line, *e;
 		ln++;
+		if (!strchr(line, '\n') && !feof(f)) {
+			fclose(f);
+			return irr_error_set(err, IRR_EINPUT, arg, ln, "line too long for a SMILES");
+		}
 		while (*p == ' ' || *p == '\t')
 			p++;
 		if (!*p || *p == '\n' || *p == '\r' || *p == '#')
@@ -124,7 +129,7 @@ static int ends_with(const char *s, const char *suffix)
 	return a >= b && !strcasecmp(s + a - b, suffix);
 }
 
-enum { O_STRUCTURE = 256, O_COMPONENT, O_FORMAT, O_UNITS, O_TITLE, O_OWNER,
+enum { O_STRUCTURE = 256, O_STRUCTURE_FILE, O_COMPONENT, O_FORMAT, O_UNITS, O_TITLE, O_OWNER,
        O_RANGE, O_SPACING, O_SAMPLING, O_PHASE, O_MAXABS, O_BASELINE, O_CO2,
        O_NOISE, O_SEED, O_TABLES, O_HELP };
 
@@ -132,6 +137,7 @@ int cmd_synth(int argc, char **argv)
 {
 	static const struct option longopts[] = {
 		{"structure", required_argument, NULL, O_STRUCTURE},
+		{"structure-file", required_argument, NULL, O_STRUCTURE_FILE},
 		{"component", required_argument, NULL, O_COMPONENT},
 		{"output", required_argument, NULL, 'o'},
 		{"format", required_argument, NULL, O_FORMAT},
@@ -161,7 +167,7 @@ int cmd_synth(int argc, char **argv)
 	irr_spectrum *s = NULL;
 	irr_error err;
 	size_t len = 0;
-	int opt, rc = CLI_ERROR;
+	int opt, rc = CLI_ERROR, structure_is_file = 0;
 	double sum = 0.0;
 
 	irr_error_clear(&err);
@@ -174,7 +180,11 @@ int cmd_synth(int argc, char **argv)
 		double a, b;
 		switch (opt) {
 		case O_STRUCTURE:
+		case O_STRUCTURE_FILE:
+			if (structure)
+				return cli_usage_error(CMD, "give --structure or --structure-file once");
 			structure = optarg;
+			structure_is_file = opt == O_STRUCTURE_FILE;
 			break;
 		case O_COMPONENT:
 			if (ncomp >= MAX_COMPONENTS)
@@ -269,7 +279,7 @@ int cmd_synth(int argc, char **argv)
 	if (structure) {
 		if (sum >= 1.0)
 			return cli_usage_error(CMD, "the component shares sum to %g: nothing left for --structure", sum);
-		if (structure_arg(structure, &smiles, &err) < 0)
+		if (structure_arg(structure, structure_is_file, &smiles, &err) < 0)
 			return cli_fail(&err);
 		/* The main compound first, so its name leads error messages. */
 		memmove(comp + 1, comp, ncomp * sizeof *comp);
