@@ -42,6 +42,14 @@ typedef struct irr_peak_options {
 
 void irr_peak_options_init(irr_peak_options *o);
 
+/* Overlapping bands: two equal bands of FWHM w are both reported (maxima,
+ * or maximum + shoulder) down to these separations, in units of w
+ * (measured with the defaults at 1 cm-1 spacing, FWHM 12 cm-1, SNR 500;
+ * tests/unit/test_peaks.c). Above 0.58 w (Lorentzian) and 0.85 w (Gaussian)
+ * the pair has two maxima. */
+#define IRR_PEAKS_RESOLVE_LORENTZ 0.50
+#define IRR_PEAKS_RESOLVE_GAUSS 0.70
+
 typedef struct irr_peaklist irr_peaklist;
 
 /* Picks peaks from a normalised spectrum (irr_spectrum_normalise first;

@@ -7,6 +7,7 @@
 
 int cmd_check(int argc, char **argv);
 int cmd_peaks(int argc, char **argv);
+int cmd_axis(int argc, char **argv);
 int cmd_rank(int argc, char **argv);
 int cmd_synth(int argc, char **argv);
 int cmd_batch(int argc, char **argv);
@@ -16,6 +17,7 @@ static const cli_command commands[] = {
 	{"rank", cmd_rank, "order candidate structures by how well they fit one spectrum"},
 	{"predict", cmd_predict, "list the bands a structure should show (table or JSON)"},
 	{"peaks", cmd_peaks, "pick the bands of a spectrum (table or JSON)"},
+	{"axis", cmd_axis, "check the wavenumber axis with a polystyrene film spectrum"},
 	{"synth", cmd_synth, "write the spectrum a structure or mixture should give"},
 	{"batch", cmd_batch, "check every sample of a manifest (JSON lines, in order)"},
 	{NULL, NULL, NULL}

@@ -1,0 +1,248 @@
+/* cmd_axis.c: `irrecon axis FILE`: checks the wavenumber axis of an
+ * instrument with a measured polystyrene film spectrum (reference bands of
+ * the European / Japanese Pharmacopoeia) and says whether it can be
+ * trusted. Exit 0 when every resolved band is within tolerance, 1 when one
+ * is not (or none is resolved), 2 on error. */
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <cjson/cJSON.h>
+
+#include "cli/cli.h"
+#include "irrecon/axischeck.h"
+#include "irrecon/common.h"
+#include "irrecon/spectrum.h"
+
+typedef struct opt_def {
+	const char *name;
+	const char *arg;
+	const char *help;
+} opt_def;
+
+static const opt_def opts[] = {
+	{"--json", NULL, "print JSON (schema irrecon.axis/1) instead of the table"},
+	{"--output", "FILE", "write to FILE (replaced atomically) instead of stdout"},
+	{"--block", "N", "compound JCAMP-DX file: use block N"},
+	{"--decimal-comma", NULL, "CSV: ',' is the decimal separator"},
+	{"--y-units", "UNITS", "CSV without a units header: absorbance, transmittance, ..."},
+	{"--search", "CM", "look for each band within +-CM cm-1 (default 6)"},
+	{"--min-snr", "X", "a band must stand X noise units above its surroundings (default 5)"},
+	{"--help", NULL, "show this help"},
+	{NULL, NULL, NULL}
+};
+
+static void help(void)
+{
+	printf("usage: irrecon axis FILE [OPTIONS]\n\n"
+	       "Checks the wavenumber axis of a spectrometer with a spectrum of a\n"
+	       "polystyrene film: finds the reference bands of the European Pharmacopoeia\n"
+	       "2.2.24 / Japanese Pharmacopoeia (3060.0, 2849.5, 1942.9 cm-1 within\n"
+	       "+-1.5; 1601.2, 1583.0, 1154.5, 1028.3 cm-1 within +-1.0) and reports each\n"
+	       "deviation. A band the file does not resolve is 'not found': it neither\n"
+	       "passes nor fails. The axis passes when every resolved band is within its\n"
+	       "tolerance. Use a transmission film: ATR shifts strong bands to lower\n"
+	       "wavenumber, so an ATR spectrum can fail with a good axis. This check is\n"
+	       "evidence for the lab's own qualification procedure, not a replacement.\n\n"
+	       "Options:\n");
+	for (const opt_def *d = opts; d->name; d++) {
+		char lhs[40];
+		snprintf(lhs, sizeof lhs, "%s%s%s", d->name, d->arg ? " " : "", d->arg ? d->arg : "");
+		printf("  %-20s %s\n", lhs, d->help);
+	}
+	printf("\nExit status: 0 axis within tolerance, 1 not (or no band resolved), 2 error.\n");
+}
+
+static const char *fmt(char *buf, size_t size, double v, int dec)
+{
+	irr_format_double(buf, size, v, dec);
+	return buf;
+}
+
+static char *render_table(const irr_axis_report *r, const char *path)
+{
+	char *buf = NULL;
+	size_t len = 0, nres = irr_axis_report_resolved(r), nout = irr_axis_report_outside(r);
+	size_t nall = irr_axis_report_count(r);
+	FILE *f = open_memstream(&buf, &len);
+	char a[32], b[32], c[32], d[40];
+	if (!f)
+		return NULL;
+	fprintf(f, "Wavenumber axis against polystyrene: %s\n\n", path);
+	fprintf(f, "  %9s  %9s  %9s  %9s  %s\n", "reference", "tolerance", "found", "deviation", "result");
+	for (size_t i = 0; i < nall; i++) {
+		const irr_axis_band *x = irr_axis_report_band(r, i);
+		char tol[40];
+		snprintf(tol, sizeof tol, "+-%s", fmt(b, sizeof b, x->tolerance, 1));
+		if (x->status == IRR_AXIS_NOT_FOUND) {
+			fprintf(f, "  %9s  %9s  %9s  %9s  not found (%s)\n", fmt(a, sizeof a, x->reference, 1),
+			        tol, "-", "-", x->reason);
+		} else {
+			snprintf(d, sizeof d, "%s%s", x->deviation > 0 ? "+" : "",
+			         fmt(c, sizeof c, x->deviation, 1));
+			fprintf(f, "  %9s  %9s  %9s  %9s  %s\n", fmt(a, sizeof a, x->reference, 1), tol,
+			        fmt(c, sizeof c, x->found, 1), d,
+			        x->status == IRR_AXIS_WITHIN ? "within" : "OUTSIDE");
+		}
+	}
+	fprintf(f, "\n");
+	if (nres == 0)
+		fprintf(f, "Axis NOT CONFIRMED: none of the %zu reference bands is resolved in this file.\n", nall);
+	else if (nout == 0)
+		fprintf(f, "Axis within tolerance: %zu of %zu reference bands resolved, all within; %zu not resolved.\n",
+		        nres, nall, nall - nres);
+	else
+		fprintf(f, "Axis OUT OF TOLERANCE: %zu of %zu resolved bands outside; %zu not resolved.\n",
+		        nout, nres, nall - nres);
+	if (nres > 0 && nres < nall)
+		fprintf(f, "Bands not resolved were not checked; a full check needs a film spectrum that shows them.\n");
+	if (fclose(f) != 0) {
+		free(buf);
+		return NULL;
+	}
+	return buf;
+}
+
+static char *render_json(const irr_axis_report *r, const irr_spectrum *s, const char *path)
+{
+	cJSON *root = cJSON_CreateObject(), *arr;
+	char *txt, *t2;
+	size_t l;
+	if (!root)
+		return NULL;
+	cJSON_AddStringToObject(root, "schema", "irrecon.axis/1");
+	cJSON_AddStringToObject(root, "file", path);
+	cJSON_AddStringToObject(root, "source_format", irr_spectrum_source_format(s));
+	cJSON_AddStringToObject(root, "reference", "European Pharmacopoeia 2.2.24 / Japanese Pharmacopoeia, polystyrene film");
+	arr = cJSON_AddArrayToObject(root, "bands");
+	for (size_t i = 0; i < irr_axis_report_count(r); i++) {
+		const irr_axis_band *x = irr_axis_report_band(r, i);
+		cJSON *o = cJSON_CreateObject();
+		cJSON_AddNumberToObject(o, "reference", x->reference);
+		cJSON_AddNumberToObject(o, "tolerance", x->tolerance);
+		if (x->status == IRR_AXIS_NOT_FOUND) {
+			cJSON_AddNullToObject(o, "found");
+			cJSON_AddNullToObject(o, "deviation");
+		} else {
+			cJSON_AddNumberToObject(o, "found", x->found);
+			cJSON_AddNumberToObject(o, "deviation", x->deviation);
+		}
+		cJSON_AddStringToObject(o, "status", irr_axis_status_name(x->status));
+		if (x->reason[0])
+			cJSON_AddStringToObject(o, "reason", x->reason);
+		cJSON_AddItemToArray(arr, o);
+	}
+	cJSON_AddNumberToObject(root, "resolved", (double)irr_axis_report_resolved(r));
+	cJSON_AddNumberToObject(root, "not_resolved",
+	                        (double)(irr_axis_report_count(r) - irr_axis_report_resolved(r)));
+	cJSON_AddNumberToObject(root, "outside", (double)irr_axis_report_outside(r));
+	cJSON_AddBoolToObject(root, "passed", irr_axis_report_passed(r));
+	txt = cJSON_Print(root);
+	cJSON_Delete(root);
+	if (!txt)
+		return NULL;
+	l = strlen(txt);
+	t2 = realloc(txt, l + 2);
+	if (!t2) {
+		free(txt);
+		return NULL;
+	}
+	t2[l] = '\n';
+	t2[l + 1] = '\0';
+	return t2;
+}
+
+int cmd_axis(int argc, char **argv)
+{
+	irr_read_options ro;
+	irr_axis_options ao;
+	irr_error err;
+	const char *path = NULL, *output = "-";
+	int json = 0, rc = CLI_ERROR;
+	irr_spectrum *s = NULL;
+	irr_axis_report *r = NULL;
+	char *text = NULL;
+
+	irr_read_options_init(&ro);
+	irr_axis_options_init(&ao);
+	irr_error_clear(&err);
+	for (int i = 1; i < argc; i++) {
+		const char *a = argv[i], *v = NULL;
+		const opt_def *d = NULL;
+		if (a[0] != '-' || !strcmp(a, "-")) {
+			if (path)
+				return cli_usage_error("axis", "one FILE only ('%s' and '%s')", path, a);
+			path = a;
+			continue;
+		}
+		if (!strcmp(a, "-h"))
+			a = "--help";
+		for (const opt_def *q = opts; q->name; q++)
+			if (!strcmp(a, q->name))
+				d = q;
+		if (!d)
+			return cli_usage_error("axis", "unknown option '%s'", a);
+		if (d->arg) {
+			if (i + 1 >= argc)
+				return cli_usage_error("axis", "%s needs a value", a);
+			v = argv[++i];
+		}
+		if (!strcmp(a, "--help")) {
+			help();
+			return CLI_OK;
+		} else if (!strcmp(a, "--json")) {
+			json = 1;
+		} else if (!strcmp(a, "--output")) {
+			output = v;
+		} else if (!strcmp(a, "--decimal-comma")) {
+			ro.decimal_comma = 1;
+		} else if (!strcmp(a, "--y-units")) {
+			static const irr_yunits all[] = {IRR_Y_TRANSMITTANCE, IRR_Y_PERCENT_T, IRR_Y_ABSORBANCE,
+			                                 IRR_Y_REFLECTANCE, IRR_Y_KUBELKA_MUNK, IRR_Y_ARBITRARY};
+			size_t k;
+			for (k = 0; k < sizeof all / sizeof all[0]; k++)
+				if (!strcmp(v, irr_yunits_name(all[k])))
+					break;
+			if (k == sizeof all / sizeof all[0])
+				return cli_usage_error("axis", "unknown Y units '%s'", v);
+			ro.y_units = all[k];
+		} else {
+			double num;
+			char *end;
+			if (irr_parse_double(v, &end, &num) != IRR_OK || *end)
+				return cli_usage_error("axis", "%s needs a number, not '%s'", a, v);
+			if (!strcmp(a, "--block")) {
+				if (num < 1 || num > 1e6 || num != (double)(int)num)
+					return cli_usage_error("axis", "--block needs a whole number >= 1, not '%s'", v);
+				ro.block = (int)num;
+			} else if (!strcmp(a, "--search")) {
+				ao.search_cm = num;
+			} else if (!strcmp(a, "--min-snr")) {
+				ao.min_snr = num;
+			}
+		}
+	}
+	if (!path)
+		return cli_usage_error("axis", "no FILE given");
+	if (irr_spectrum_read_file(&s, path, &ro, &err) != IRR_OK ||
+	    irr_spectrum_normalise(s, &err) != IRR_OK || irr_axis_check(&r, s, &ao, &err) != IRR_OK) {
+		rc = cli_fail(&err);
+		goto done;
+	}
+	text = json ? render_json(r, s, path) : render_table(r, path);
+	if (!text) {
+		irr_error_set(&err, IRR_ENOMEM, path, 0, "out of memory while formatting");
+		rc = cli_fail(&err);
+		goto done;
+	}
+	if (cli_write_file_atomic(output, text, strlen(text), &err) != IRR_OK) {
+		rc = cli_fail(&err);
+		goto done;
+	}
+	rc = irr_axis_report_passed(r) ? CLI_OK : CLI_NOT_CONSISTENT;
+done:
+	free(text);
+	irr_axis_report_free(r);
+	irr_spectrum_free(s);
+	return rc;
+}
