@@ -1085,6 +1085,21 @@ static void short_label(char *dst, size_t size, const char *label)
 	dst[n] = '\0';
 }
 
+/* Whether `name` is a library name of one of the check's other
+ * substances (not a SMILES the user gave). */
+static int library_named(const irr_check *c, const char *name)
+{
+	size_t n = irr_check_other_count(c);
+	if (!name)
+		return 0;
+	for (size_t i = 0; i < n; i++) {
+		const irr_other *o = irr_check_other(c, i);
+		if (o && o->name && !strcmp(o->name, name))
+			return 1;
+	}
+	return 0;
+}
+
 static void plot_free(plot *p)
 {
 	free(p->y);
@@ -1240,7 +1255,14 @@ int irr_report_svg(char **out, const irr_check *c, const irr_svg_options *o)
 			k->prio = 0;
 			break;
 		case IRR_PEAK_ATTRIBUTED:
-			snprintf(word, sizeof word, "%s", ob->attributed_name ? ob->attributed_name : "other");
+			/* A library name reads well ("ethyl acetate"); a SMILES the
+			 * user typed does not, so then the kind of substance stands in. */
+			if (ob->attributed_kind <= IRR_SOURCE_SOLVENT && !library_named(c, ob->attributed_name))
+				snprintf(word, sizeof word, "%s",
+				         ob->attributed_kind == IRR_SOURCE_STARTING_MATERIAL ? "start. mat."
+				         : ob->attributed_kind == IRR_SOURCE_REAGENT ? "reagent" : "solvent");
+			else
+				snprintf(word, sizeof word, "%s", ob->attributed_name ? ob->attributed_name : "other");
 			if (strlen(word) > 14)
 				memcpy(word + 12, "..", 3);
 			snprintf(k->label, sizeof k->label, "%s %s", word, pos);
@@ -1250,7 +1272,7 @@ int irr_report_svg(char **out, const irr_check *c, const irr_svg_options *o)
 		default: {
 			const irr_expected *e = ob->expected >= 0 ? irr_check_expected(c, (size_t)ob->expected) : NULL;
 			short_label(word, sizeof word, e && e->band ? e->band->label : NULL);
-			if (e && e->weight >= 0.5 && word[0]) {
+			if (e && (e->weight >= 0.25 || (e->band && e->band->weight >= 0.5)) && word[0]) {
 				snprintf(k->label, sizeof k->label, "%s %s", word, pos);
 				k->prio = 2;
 				k->weight = e->weight;
