@@ -126,7 +126,8 @@ install: all $(BUILD)/irrecon.pc
 	install -m 644 $(BUILD)/irrecon.pc $(DESTDIR)$(LIBDIR)/pkgconfig/irrecon.pc
 
 # Speed and memory figures against their targets; never part of `make test`.
-bench: all $(BUILD)/.deps-test
+bench: all
+	@./tools/ensure-debs python3 python3-rdkit python3-scipy pkg-config
 	@BUILD=$(BUILD) ./tools/bench
 
 clean:
