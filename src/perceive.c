@@ -1045,6 +1045,13 @@ static void perceive_alkenes(ctx *c)
 			continue;
 		if ((c->flags[p] & F_ALKENE_DONE) && (c->flags[q] & F_ALKENE_DONE))
 			continue;
+		int cumulated = 0;
+		FOR_NB(c, p, e)
+			cumulated += c->na[e] != q && (c->no[e] == 2 || c->no[e] == 3);
+		FOR_NB(c, q, e)
+			cumulated += c->na[e] != p && (c->no[e] == 2 || c->no[e] == 3);
+		if (cumulated)
+			continue; /* ketenes, allenes: not an alkene C=C */
 		int sp = DEG(c, p) - 1, sq = DEG(c, q) - 1;
 		int tot = sp + sq;
 		const char *pat;
