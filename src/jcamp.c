@@ -615,7 +615,33 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 			return irr_error_set(err, IRR_EINPUT, name, line,
 			                     "X is not monotonic: this line's X (%.10g) does not go on from the previous line's (%.10g)",
 			                     lx, prev_line_x);
-		line_start_n = d->n;
+		line_start_n = dif_pending && d->n ? d->n - 1 : d->n;
+		/* The line's abscissa names the X of its first ordinate (the
+		 * check value after a DIF line); when it is out of step, the line
+		 * before holds too many or too few. Checked before this line's
+		 * values so that an overflow on it can name the culprit. */
+		{
+			double expect_x = x0 + (double)line_start_n * dx;
+			double tol = 0.5 * fabs(dx) + fabs(xfactor) + 1e-9 * fabs(expect_x);
+			if (!d->have_line_x) {
+				d->first_line_x = lx;
+				d->have_line_x = 1;
+			}
+			if (dx != 0.0 && !d->line_mismatch && fabs(lx * xfactor - expect_x) > tol) {
+				d->line_mismatch = line;
+				d->mismatch_x = lx * xfactor;
+				d->mismatch_expect = expect_x;
+				if (have_prev_line_x) {
+					d->bad_line = prev_line_no;
+					d->bad_count = line_start_n - prev_line_start;
+					d->bad_implied = floor((lx - prev_line_x) * xfactor / dx + 0.5);
+					d->bad_suspect = prev_suspect;
+					d->bad_suspect_len = prev_suspect_len;
+				}
+			}
+			d->last_line_x = lx;
+			d->last_line_index = line_start_n;
+		}
 		for (;;) {
 			next_token(&q, de, 0, &t);
 			if (t.kind == TK_END)
@@ -648,7 +674,6 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 						return irr_error_set(err, IRR_EINPUT, name, line,
 						                     "Y-check value %.10g does not repeat the last value %.10g of the line before (corrupt or truncated data)",
 						                     t.v, last);
-					line_start_n = d->n - 1;
 					prev_kind = TK_ABS;
 					break;
 				}
@@ -699,30 +724,6 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 		if (first_y)
 			return irr_error_set(err, IRR_EINPUT, name, line,
 			                     "a data line with an X value but no Y values");
-		/* The line's abscissa names the X of its first ordinate; when it
-		 * is out of step, the line before holds too many or too few. */
-		{
-			double expect_x = x0 + (double)line_start_n * dx;
-			double tol = 0.5 * fabs(dx) + fabs(xfactor) + 1e-9 * fabs(expect_x);
-			if (!d->have_line_x) {
-				d->first_line_x = lx;
-				d->have_line_x = 1;
-			}
-			if (dx != 0.0 && !d->line_mismatch && fabs(lx * xfactor - expect_x) > tol) {
-				d->line_mismatch = line;
-				d->mismatch_x = lx * xfactor;
-				d->mismatch_expect = expect_x;
-				if (have_prev_line_x) {
-					d->bad_line = prev_line_no;
-					d->bad_count = line_start_n - prev_line_start;
-					d->bad_implied = floor((lx - prev_line_x) * xfactor / dx + 0.5);
-					d->bad_suspect = prev_suspect;
-					d->bad_suspect_len = prev_suspect_len;
-				}
-			}
-			d->last_line_x = lx;
-			d->last_line_index = line_start_n;
-		}
 		dif_pending = prev_kind == TK_DIF;
 		prev_line_x = lx;
 		prev_line_start = line_start_n;
