@@ -710,18 +710,30 @@ int irr_request__parse_json(cJSON **out, const char *json, size_t len,
 	*out = NULL;
 	if (memchr(json, '\0', len))
 		return irr_error_set(err, IRR_EINPUT, name, first_line, "binary data (a NUL byte) in JSON text");
-	root = cJSON_ParseWithLengthOpts(json, len, &end, 1);
+	{
+		size_t k = 0;
+		while (k < len && (json[k] == ' ' || json[k] == '\n' || json[k] == '\r' || json[k] == '\t'))
+			k++;
+		if (k == len)
+			return irr_error_set(err, IRR_EINPUT, name, first_line, "empty: no JSON object");
+	}
+	/* Not cJSON's own null-termination check: it fails whenever the
+	 * length excludes the NUL, and manifest lines are slices. */
+	root = cJSON_ParseWithLengthOpts(json, len, &end, 0);
+	if (root && end) {
+		const char *p = end;
+		while (p < json + len && (*p == ' ' || *p == '\t' || *p == '\r' || *p == '\n'))
+			p++;
+		if (p < json + len) {
+			cJSON_Delete(root);
+			return irr_error_set(err, IRR_EINPUT, name, first_line + line_at(json, p) - 1,
+			                     "text after the end of the JSON value");
+		}
+	}
 	if (!root) {
 		long line = first_line;
 		if (end && end >= json && end <= json + len)
 			line = first_line + line_at(json, end) - 1;
-		if (!end || end >= json + len) {
-			size_t k = len;
-			while (k > 0 && (json[k - 1] == ' ' || json[k - 1] == '\n' || json[k - 1] == '\r' || json[k - 1] == '\t'))
-				k--;
-			if (k == 0)
-				return irr_error_set(err, IRR_EINPUT, name, first_line, "empty: no JSON object");
-		}
 		return irr_error_set(err, IRR_EINPUT, name, line, "not valid JSON here");
 	}
 	*out = root;
