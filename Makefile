@@ -15,7 +15,7 @@ VERSION  := 0.1.0
 
 # Debian packages the build and the tests need; `deps` installs what is missing.
 DEB_BUILD := g++ make pkg-config libopenbabel-dev libcjson-dev libcmocka-dev
-DEB_TEST  := python3 python3-rdkit python3-scipy libxml2-utils valgrind clang nodejs npm chromium python3-pil \
+DEB_TEST  := python3 python3-rdkit python3-scipy libxml2-utils valgrind clang nodejs:node npm:npm chromium python3-pil \
              libclang-rt-dev locales
 
 PKGS      := openbabel-3 libcjson
