@@ -30,7 +30,8 @@
 #define FINGERPRINT_PEAK  0.4   /* weight of unexplained peaks below 1500 cm-1 */
 #define DECISIVE_WEIGHT   0.5   /* table weight from which a missing band decides */
 #define FINGERPRINT_DECISIVE_WEIGHT 0.8
-#define FINGERPRINT_DECISIVE_REL 0.8 /* an unexplained fingerprint peak this strong decides */
+#define DECISIVE_REL      0.5   /* an unexplained peak this strong (>= 1500 cm-1) decides */
+#define SPIKE_FWHM        6.0   /* narrower unexplained peaks never decide alone */
 #define MAX_CANDIDATES    4
 #define NOISY_FRAC        0.08  /* noise above this fraction of the strongest peak */
 
@@ -130,6 +131,7 @@ struct irr_check {
 	int ran;
 	irr_prediction *pred;
 	irr_expected *exp;
+	int *eclass;                 /* effective expected class per band */
 	size_t nexp;
 	irr_observed *obs;
 	size_t nobs;
@@ -189,6 +191,8 @@ static void clear_result(irr_check *c)
 	c->pred = NULL;
 	free(c->exp);
 	c->exp = NULL;
+	free(c->eclass);
+	c->eclass = NULL;
 	c->nexp = 0;
 	free(c->obs);
 	c->obs = NULL;
@@ -541,16 +545,6 @@ static int peak_class(const irr_peak *p)
 	return k ? k : 1;
 }
 
-static double intensity_factor(irr_intensity v)
-{
-	switch (v) {
-	case IRR_INT_STRONG: return 1.0;
-	case IRR_INT_MEDIUM: return 0.7;
-	case IRR_INT_WEAK: return 0.3;
-	default: return 0.5;
-	}
-}
-
 static int is_broad_shape(irr_shape s)
 {
 	return s == IRR_SHAPE_BROAD || s == IRR_SHAPE_VERY_BROAD;
@@ -582,12 +576,12 @@ static int overlaps(double a0, double a1, double b0, double b1)
 /* Cost of explaining peak p by band b (without the band weight), or
  * IRR_ASSIGN_FORBIDDEN. Position inside the window, intensity class and
  * shape each add; see the schema document for the numbers. */
-static double pair_cost(const irr_band *b, const irr_peak *p, const irr_check *c)
+static double pair_cost(const irr_band *b, int ec, const irr_peak *p, const irr_check *c)
 {
 	double lo = b->low, hi = b->high, m = margin_of(lo, hi);
 	double pos = p->position, cost = 0.0;
 	double half = 0.5 * (hi - lo);
-	int ec = iclass(b->intensity), oc = peak_class(p);
+	int oc = peak_class(p);
 	if (half < 5.0)
 		half = 5.0;
 	if (p->saturated) {
@@ -616,6 +610,8 @@ static double pair_cost(const irr_band *b, const irr_peak *p, const irr_check *c
 	if (ec) {
 		if (ec == 3 && oc == 1)
 			return IRR_ASSIGN_FORBIDDEN;  /* a strong band is never a trace */
+		if (ec == 1 && oc == 3 && (b->overtone || b->weight < 0.3))
+			return IRR_ASSIGN_FORBIDDEN;  /* nor a weak overtone the strongest band */
 		cost += 0.3 * abs(ec - oc);
 	}
 	/* Shape: a broad O-H is not a sharp N-H. */
@@ -631,12 +627,35 @@ static double pair_cost(const irr_band *b, const irr_peak *p, const irr_check *c
 			cost += p->fwhm > 3.0 * c->opt.peaks.broad_cm ? 0.9 : 0.4;
 		}
 	}
+	/* A band's maximum is a better witness than a shoulder on it. */
+	if (p->shoulder)
+		cost += 0.15;
 	return cost;
 }
 
-static double band_weight_eff(const irr_band *b)
+/* Expected class of a band in this molecule. The tables class alkyl C-H
+ * stretches as strong, which holds when sp3 C-H bonds are plentiful; in a
+ * molecule with few of them (an acetyl group on an aromatic ketone) they
+ * are weak beside the polar bands. Common practice. */
+static int eff_class(const irr_check *c, const irr_band *b)
 {
-	double w = b->weight * intensity_factor(b->intensity);
+	int ec = iclass(b->intensity);
+	const irr_group *g = irr_inventory_group(c->inv, b->group_index);
+	if (ec && g && b->typical > 2800 && b->typical < 3000 &&
+	    (!strcmp(g->id, "methyl") || !strcmp(g->id, "methylene") || !strcmp(g->id, "methine"))) {
+		const irr_counts *k = irr_inventory_counts(c->inv);
+		double ratio = k->heavy_atoms ? (double)k->c_h_sp3 / k->heavy_atoms : 0;
+		int cap = ratio >= 1.2 ? 3 : ratio >= 0.8 ? 2 : 1;
+		if (ec > cap)
+			ec = cap;
+	}
+	return ec;
+}
+
+static double band_weight_eff(const irr_band *b, int ec)
+{
+	static const double f[] = {0.5, 0.3, 0.7, 1.0};
+	double w = b->weight * f[ec >= 0 && ec <= 3 ? ec : 0];
 	if (irr_region_of(b->typical) == 4)
 		w *= FINGERPRINT_FACTOR;
 	if (b->overtone)
@@ -783,6 +802,45 @@ static int peak_in(const irr_peak *p, double lo, double hi, double margin)
 	return p->position >= lo - margin && p->position <= hi + margin;
 }
 
+/* Whether a missing band alone makes the structure inconsistent:
+ *   - an expected strong band of weight >= 0.5;
+ *   - any band of weight >= 0.8;
+ *   - a medium band of weight >= 0.5 when its group as a whole is poorly
+ *     supported (less than half its observable weight found);
+ *   - an X-H stretch of weight >= 0.5 above 1500 cm-1 whose group has
+ *     another X-H stretch of the same kind found: one N-H stretch where a
+ *     primary amine needs two (common practice). */
+static int missing_decides(const irr_check *c, size_t i)
+{
+	const irr_band *b = c->exp[i].band;
+	int ec = c->eclass[i];
+	double gf = 0, gt = 0;
+	int pair = 0;
+	if (b->overtone)
+		return 0;
+	if (b->weight >= 0.8)
+		return 1;
+	if (b->weight < DECISIVE_WEIGHT)
+		return 0;
+	if (ec >= 3)
+		return 1;
+	for (size_t k = 0; k < c->nexp; k++) {
+		const irr_expected *o = &c->exp[k];
+		if (o->band->group_index != b->group_index || o->band->overtone ||
+		    o->status == IRR_BAND_UNOBSERVABLE)
+			continue;
+		gt += o->band->weight;
+		if (o->status == IRR_BAND_FOUND || o->status == IRR_BAND_SATURATED) {
+			gf += o->band->weight;
+			if (k != i && same_kind(o->band->label, b->label) && strstr(b->label, "-H stretch"))
+				pair = 1;
+		}
+	}
+	if (pair && b->typical >= 1500)
+		return 1;
+	return ec >= 2 && gt > 0 && gf < 0.5 * gt;
+}
+
 /* ---- The run ---- */
 
 int irr_check_run(irr_check *c, irr_error *err)
@@ -823,11 +881,12 @@ int irr_check_run(irr_check *c, irr_error *err)
 	ne = irr_prediction_count(c->pred);
 
 	c->exp = calloc(ne + 1, sizeof *c->exp);
+	c->eclass = calloc(ne + 1, sizeof *c->eclass);
 	c->obs = calloc(np + 1, sizeof *c->obs);
 	c->cands = calloc(np * MAX_CANDIDATES + 1, sizeof *c->cands);
 	c->ores = calloc(c->nothers + 1, sizeof *c->ores);
 	rows = calloc(ne + 1, sizeof *rows);
-	if (!c->exp || !c->obs || !c->cands || !c->ores || !rows)
+	if (!c->exp || !c->eclass || !c->obs || !c->cands || !c->ores || !rows)
 		goto nomem;
 	c->nexp = ne;
 	c->nobs = np;
@@ -850,7 +909,8 @@ int irr_check_run(irr_check *c, irr_error *err)
 		double in_lo = b->low > rlo ? b->low : rlo, in_hi = b->high < rhi ? b->high : rhi;
 		e->band = b;
 		e->peak = -1;
-		e->weight = band_weight_eff(b);
+		c->eclass[i] = eff_class(c, b);
+		e->weight = band_weight_eff(b, c->eclass[i]);
 		if (in_hi <= in_lo || b->typical < rlo - 1 || b->typical > rhi + 1) {
 			e->status = IRR_BAND_UNOBSERVABLE;
 			e->note = "outside the measured range";
@@ -878,7 +938,7 @@ int irr_check_run(irr_check *c, irr_error *err)
 			double scale = 0.2 + b->weight;
 			double *row = cost + r * m;
 			for (size_t j = 0; j < np; j++) {
-				double k = pair_cost(b, c->obs[j].peak, c);
+				double k = pair_cost(b, c->eclass[rows[r]], c->obs[j].peak, c);
 				row[j] = k >= IRR_ASSIGN_FORBIDDEN ? k : k * scale;
 			}
 			for (size_t k = 0; k < nrows; k++)
@@ -901,8 +961,10 @@ int irr_check_run(irr_check *c, irr_error *err)
 
 	/* 3. Sharing: a band left without a peak may share the peak of a band
 	 * of the same kind from another group (CH3 and CH2 stretches, two
-	 * carbonyls), when that peak would have suited it too. Two bands of one
-	 * group never share: a primary amine needs both N-H stretches. */
+	 * carbonyls), when that peak would have suited it too; in the crowded
+	 * fingerprint region (below 1500 cm-1) a band of weight 0.5 or less may
+	 * share with a band of any kind. Two bands of one group never share: a
+	 * primary amine needs both N-H stretches. */
 	for (size_t r = 0; r < nrows; r++) {
 		irr_expected *e = &c->exp[rows[r]];
 		double best = MISSING_COST;
@@ -916,9 +978,10 @@ int irr_check_run(irr_check *c, irr_error *err)
 				continue;
 			o = &c->exp[c->obs[j].expected];
 			if (o->band->group_index == e->band->group_index ||
-			    !same_kind(o->band->label, e->band->label))
+			    (!same_kind(o->band->label, e->band->label) &&
+			     !(c->obs[j].peak->position < 1500 && e->band->weight <= 0.5)))
 				continue;
-			k = pair_cost(e->band, c->obs[j].peak, c);
+			k = pair_cost(e->band, c->eclass[rows[r]], c->obs[j].peak, c);
 			if (k < best)
 				best = k, bj = (long)j;
 		}
@@ -934,13 +997,15 @@ int irr_check_run(irr_check *c, irr_error *err)
 	 * group cannot be seen; strong bands are never hidden this way. */
 	for (size_t i = 0; i < ne; i++) {
 		irr_expected *e = &c->exp[i];
-		int ec = iclass(e->band->intensity);
+		int ec = c->eclass[i];
 		if (e->status != IRR_BAND_MISSING || ec >= 3)
 			continue;
 		for (size_t j = 0; j < np; j++) {
 			const irr_peak *p = c->obs[j].peak;
 			double lo = p->low, hi = p->high;
-			if (c->obs[j].expected >= 0 &&
+			/* Only under a band the product explains: an unexplained
+			 * peak there may be this very band, shifted. */
+			if (c->obs[j].expected < 0 ||
 			    c->exp[c->obs[j].expected].band->group_index == e->band->group_index)
 				continue;
 			if (hi <= lo) {
@@ -968,7 +1033,23 @@ int irr_check_run(irr_check *c, irr_error *err)
 		double bestd = 1e9;
 		if (o->status == IRR_PEAK_EXPLAINED)
 			continue;
-		for (size_t i = 0; i < ne; i++) {
+		/* A shoulder or split top inside the half-height span of a
+		 * stronger assigned peak is part of that band. */
+		long shoulder = -1;
+		for (size_t k = 0; k < np && shoulder < 0; k++) {
+			const irr_peak *q = c->obs[k].peak;
+			if (k == j || c->obs[k].expected < 0 || c->exp[c->obs[k].expected].shared ||
+			    c->exp[c->obs[k].expected].peak != (long)k)
+				continue;
+			if (q->high > q->low && p->position > q->low && p->position < q->high &&
+			    (q->saturated || p->height < q->height))
+				shoulder = c->obs[k].expected;
+			/* the band went to a shoulder of this very maximum */
+			else if (q->shoulder && p->high > p->low && q->position > p->low &&
+			         q->position < p->high)
+				shoulder = c->obs[k].expected;
+		}
+		for (size_t i = 0; i < ne && shoulder < 0; i++) {
 			const irr_expected *e = &c->exp[i];
 			const irr_band *b = e->band;
 			double d;
@@ -976,6 +1057,8 @@ int irr_check_run(irr_check *c, irr_error *err)
 			if (e->status == IRR_BAND_UNOBSERVABLE && e->note && e->note[0] == 'o')
 				continue;
 			if (!peak_in(p, b->low, b->high, 0.5 * margin_of(b->low, b->high)))
+				continue;
+			if (b->overtone && peak_class(p) > 1)
 				continue;
 			ok = peak_class(p) == 1 || p->position < 1500 ||
 			     (p->position > 2800 && p->position < 3120 && !p->broad) ||
@@ -992,9 +1075,61 @@ int irr_check_run(irr_check *c, irr_error *err)
 			if (d < bestd)
 				bestd = d, best = (long)i;
 		}
+		if (shoulder >= 0)
+			best = shoulder;
+		/* Alkyl C-H stretching gives more peaks than the tables list
+		 * (Fermi resonance with bending overtones, rotamers): an extra
+		 * sharp peak at 2800-3000 cm-1 is the product's when it has alkyl
+		 * C-H stretches. Common practice. */
+		if (best < 0 && !p->broad && p->position >= 2800 && p->position <= 3000) {
+			bestd = 1e9;
+			for (size_t i = 0; i < ne; i++) {
+				const irr_band *b = c->exp[i].band;
+				const irr_group *g = irr_inventory_group(c->inv, b->group_index);
+				if (!g || b->typical < 2800 || b->typical > 3000 ||
+				    (strcmp(g->id, "methyl") && strcmp(g->id, "methylene") && strcmp(g->id, "methine")))
+					continue;
+				if (fabs(p->position - b->typical) < bestd)
+					bestd = fabs(p->position - b->typical), best = (long)i;
+			}
+		}
 		if (best >= 0) {
 			o->status = IRR_PEAK_EXPLAINED;
 			o->expected = best;
+		}
+	}
+
+	/* 5b. A band still missing may take a peak that nothing explains just
+	 * beyond its window (up to twice the usual margin): real positions
+	 * stray past handbook windows more often than a wrong group happens to
+	 * fall there. */
+	for (size_t r = 0; r < nrows; r++) {
+		size_t i = rows[r];
+		irr_expected *e = &c->exp[i];
+		irr_band wide;
+		double best = MISSING_COST, m;
+		long bj = -1;
+		if (e->status != IRR_BAND_MISSING)
+			continue;
+		wide = *e->band;
+		m = margin_of(wide.low, wide.high);
+		wide.low -= m;
+		wide.high += m;
+		for (size_t j = 0; j < np; j++) {
+			double k;
+			if (c->obs[j].status != IRR_PEAK_UNEXPLAINED || !c->obs[j].significant)
+				continue;
+			k = pair_cost(&wide, c->eclass[i], c->obs[j].peak, c) + 0.3;
+			if (k < best)
+				best = k, bj = (long)j;
+		}
+		if (bj >= 0) {
+			e->status = IRR_BAND_FOUND;
+			e->peak = bj;
+			e->deviation = c->obs[bj].peak->position - e->band->typical;
+			e->note = "found just outside its window";
+			c->obs[bj].status = IRR_PEAK_EXPLAINED;
+			c->obs[bj].expected = (long)i;
 		}
 	}
 
@@ -1217,7 +1352,8 @@ int irr_check_run(irr_check *c, irr_error *err)
 		for (size_t i = 0; i < ne; i++) {
 			const irr_expected *e = &c->exp[i];
 			const irr_band *b = e->band;
-			int key = !b->overtone && b->weight >= DECISIVE_WEIGHT && iclass(b->intensity) >= 2;
+			int ec = c->eclass[i];
+			int key = !b->overtone && b->weight >= DECISIVE_WEIGHT && ec >= 2;
 			if (key) {
 				key_total += b->weight;
 				if (e->status != IRR_BAND_UNOBSERVABLE)
@@ -1229,7 +1365,8 @@ int irr_check_run(irr_check *c, irr_error *err)
 			} else if (e->status == IRR_BAND_MISSING) {
 				missing_w += e->weight;
 				nobservable++;
-				if (key && (irr_region_of(b->typical) < 4 || b->weight >= FINGERPRINT_DECISIVE_WEIGHT))
+				if (!b->overtone && missing_decides(c, i) &&
+				    (irr_region_of(b->typical) < 4 || b->weight >= FINGERPRINT_DECISIVE_WEIGHT))
 					order[no++] = i;
 			}
 		}
@@ -1283,8 +1420,8 @@ int irr_check_run(irr_check *c, irr_error *err)
 				const irr_peak *p = o->peak;
 				char cl[200] = "";
 				int dec = p->saturated ? p->position >= 1500
-				        : (p->intensity == IRR_INT_STRONG && p->position >= 1500) ||
-				          p->rel_height >= FINGERPRINT_DECISIVE_REL;
+				        : (p->fwhm <= 0 || p->fwhm >= SPIKE_FWHM) &&
+				          p->rel_height >= DECISIVE_REL && p->position >= 1500;
 				if ((pass == 0) != (dec != 0))
 					continue;
 				if (pass == 1 && p->intensity == IRR_INT_WEAK)
