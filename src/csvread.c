@@ -111,8 +111,26 @@ static int ci_contains(const char *p, size_t len, const char *needle)
 	return 0;
 }
 
+static int ci_equal(const char *p, size_t len, const char *w)
+{
+	size_t m = strlen(w);
+	if (len != m)
+		return 0;
+	for (size_t i = 0; i < m; i++)
+		if (tolower((unsigned char)p[i]) != w[i])
+			return 0;
+	return 1;
+}
+
 static irr_yunits header_y_units(const char *p, size_t len)
 {
+	/* Column names that are only the quantity's symbol. */
+	if (ci_equal(p, len, "a"))
+		return IRR_Y_ABSORBANCE;
+	if (ci_equal(p, len, "t"))
+		return IRR_Y_TRANSMITTANCE;
+	if (ci_equal(p, len, "r"))
+		return IRR_Y_REFLECTANCE;
 	if (ci_contains(p, len, "%t") || ci_contains(p, len, "percent") ||
 	    ci_contains(p, len, "% t") || ci_contains(p, len, "(%)") || ci_contains(p, len, "[%]"))
 		return IRR_Y_PERCENT_T;
