@@ -461,8 +461,15 @@ int irr_manifest_read_memory(irr_manifest **out, const char *data, size_t len,
 	*out = NULL;
 	if (!name)
 		name = "<manifest>";
-	if (memchr(data, '\0', len))
-		return irr_error_set(err, IRR_EINPUT, name, 0, "binary data (a NUL byte): not a CSV or JSON Lines manifest");
+	{
+		const char *nul = memchr(data, '\0', len);
+		if (nul) {
+			long line = 1;
+			for (const char *p = data; p < nul; p++)
+				line += *p == '\n';
+			return irr_error_set(err, IRR_EINPUT, name, line, "binary data (a NUL byte): not a CSV or JSON Lines manifest");
+		}
+	}
 	/* A UTF-8 byte order mark, as spreadsheet programs write it. */
 	if (len >= 3 && !memcmp(data, "\xEF\xBB\xBF", 3))
 		data += 3, len -= 3;
@@ -681,10 +688,21 @@ int irr_batch_run_sample(char **json_out, irr_verdict *verdict,
 		t0 = now_s();
 	rc = irr_request__run_timed(&c, r, t, &read_s, err);
 	if (rc != IRR_OK) {
-		/* Errors the check reports without a line (a bad SMILES) are in
-		 * this row: name its line. */
-		if (err && s && err->line == 0 && !strcmp(err->file, m->name))
+		/* Errors without a line that are not about the input file (a bad
+		 * SMILES of the product or of a starting material) are in this
+		 * row of the manifest: name it and its line. */
+		const char *in = irr_request_spectrum_file(r) ? irr_request_spectrum_file(r)
+		                                              : irr_request_peaks_file(r);
+		if (err && s && err->line == 0 && (!in || strcmp(err->file, in))) {
+			if (err->file[0] && strcmp(err->file, m->name)) {
+				char msg[sizeof err->file + sizeof err->message + 4];
+				snprintf(msg, sizeof msg, "%s: %s", err->file, err->message);
+				snprintf(err->message, sizeof err->message, "%.*s",
+				         (int)sizeof err->message - 1, msg);
+			}
+			snprintf(err->file, sizeof err->file, "%s", m->name);
 			err->line = s->line;
+		}
 		goto done;
 	}
 	if (timing)
