@@ -356,7 +356,7 @@ static int in_saturated(double pos, const double *sat, size_t nsat, double guard
 /* Working arrays, one allocation. */
 struct work {
 	double *x, *y;      /* working grid (own copies when resampled) */
-	double *s, *base, *c, *d2, *lb, *rb, *smin, *scratch, *noise, *nd2;
+	double *s, *base, *c, *r, *d2, *lb, *rb, *smin, *scratch, *noise, *nd2, *blk;
 	size_t *stk, *stk2;
 	unsigned char *keep;
 	void *block;
@@ -365,26 +365,60 @@ typedef struct work work;
 
 /* Crossings of `level` left and right of maximum i, walked no further
  * than the valleys lv and rv; a missing side is mirrored about pos.
- * Returns 0 when neither side reaches the level. */
-static int width_at(const struct work *w, size_t n, size_t i, size_t lv, size_t rv,
-                    double pos, double level, double *lo, double *hi)
+ * Returns how many sides reach the level (0, 1 or 2). */
+static int width_at(const struct work *w, const double *c, size_t n, size_t i, size_t lv,
+                    size_t rv, double pos, double level, double *lo, double *hi)
 {
 	double tl = -1.0, tr = -1.0;
 	for (size_t j = i; j > lv; j--)
-		if (w->c[j - 1] <= level) {
-			tl = (double)j - (w->c[j] - level) / (w->c[j] - w->c[j - 1]);
+		if (c[j - 1] <= level) {
+			tl = (double)j - (c[j] - level) / (c[j] - c[j - 1]);
 			break;
 		}
 	for (size_t j = i; j < rv; j++)
-		if (w->c[j + 1] <= level) {
-			tr = (double)j + (w->c[j] - level) / (w->c[j] - w->c[j + 1]);
+		if (c[j + 1] <= level) {
+			tr = (double)j + (c[j] - level) / (c[j] - c[j + 1]);
 			break;
 		}
 	if (tl < 0.0 && tr < 0.0)
 		return 0;
 	*lo = tl >= 0.0 ? x_at(w->x, n, tl) : 2.0 * pos - x_at(w->x, n, tr);
 	*hi = tr >= 0.0 ? x_at(w->x, n, tr) : 2.0 * pos - *lo;
-	return 1;
+	return (tl >= 0.0) + (tr >= 0.0);
+}
+
+/* Least-squares parabola through c[i-m..i+m] (clipped to lo..hi); its
+ * vertex offset from i in points, or NAN when it has no maximum there.
+ * Used on bands many points wide, whose flat noisy top three points
+ * cannot locate: the fit over the top averages the noise away. */
+static double vertex_fit(const double *c, size_t i, size_t m, size_t lo, size_t hi)
+{
+	double s0 = 0, s1 = 0, s2 = 0, s3 = 0, s4 = 0, t0 = 0, t1 = 0, t2 = 0;
+	size_t a = i > lo + m ? i - m : lo, e = i + m < hi ? i + m : hi;
+	for (size_t j = a; j <= e; j++) {
+		double t = (double)j - (double)i, t2v = t * t;
+		s0 += 1;
+		s1 += t;
+		s2 += t2v;
+		s3 += t2v * t;
+		s4 += t2v * t2v;
+		t0 += c[j];
+		t1 += c[j] * t;
+		t2 += c[j] * t2v;
+	}
+	if (s0 < 5)
+		return NAN;
+	/* Normal equations [s0 s1 s2; s1 s2 s3; s2 s3 s4] [p0 p1 p2] = [t0 t1 t2],
+	 * by Cramer's rule (3x3, well conditioned for |t| <= m). */
+	double det = s0 * (s2 * s4 - s3 * s3) - s1 * (s1 * s4 - s3 * s2) + s2 * (s1 * s3 - s2 * s2);
+	if (det == 0.0)
+		return NAN;
+	double p1 = (s0 * (t1 * s4 - s3 * t2) - t0 * (s1 * s4 - s3 * s2) + s2 * (s1 * t2 - t1 * s2)) / det;
+	double p2 = (s0 * (s2 * t2 - t1 * s3) - s1 * (s1 * t2 - t1 * s2) + t0 * (s1 * s3 - s2 * s2)) / det;
+	if (!(p2 < 0.0))
+		return NAN;
+	double v = -p1 / (2.0 * p2);
+	return fabs(v) <= (double)m ? v : NAN;
 }
 
 /* Median of v[b-1], v[b], v[b+1] (the two at an end: the smaller). */
@@ -434,7 +468,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 	size_t n, nb;
 	double dx, med;
 	int half, order, rc = IRR_OK, uniform = 1;
-	double gain0, gain2, sigma;
+	double gain2, sigma;
 
 	memset(&w, 0, sizeof w);
 	if (out)
@@ -492,7 +526,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 
 	/* One block for every working array. */
 	{
-		size_t nd = 12, bytes;
+		size_t nd = 13, bytes;
 		nb = (n + NOISE_BLOCK - 1) / NOISE_BLOCK;
 		bytes = (nd * n + 2 * nb) * sizeof(double) + 2 * n * sizeof(size_t) + n;
 		w.block = malloc(bytes);
@@ -509,9 +543,10 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		w.rb = d; d += n;
 		w.smin = d; d += n;
 		w.scratch = d; d += n;
-		w.noise = d; d += n; /* per point noise of the smoothed trace */
+		w.noise = d; d += n; /* per point noise sd, raw-trace equivalent */
 		w.nd2 = d; d += n;   /* per point noise of the second derivative */
-		d += 2 * nb;
+		w.r = d; d += n;     /* unsmoothed trace above the baseline */
+		w.blk = d; d += 2 * nb; /* per block noise levels */
 		w.stk = (size_t *)d;
 		w.stk2 = w.stk + n;
 		w.keep = (unsigned char *)(w.stk2 + n);
@@ -537,50 +572,68 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		}
 	}
 
-	/* Savitzky-Golay parameters: window from the option (or auto) in cm-1,
-	 * degree 4 when the window is wide enough to smooth with it (keeps
-	 * band heights and widths), else degree 2. */
+	/* Savitzky-Golay parameters. Degree 4 (quartic) keeps band heights and
+	 * widths where a quadratic of the same window would flatten narrow
+	 * bands (Savitzky & Golay 1964; the usual advice, e.g. Press et al.,
+	 * Numerical Recipes, 3rd ed., 14.9). Auto: a 7 cm-1 window of at
+	 * least 7 points. On coarse grids that still widens narrow bands (8
+	 * cm-1 bands by 7 % at 1.93 cm-1 spacing), so narrow bands are
+	 * measured on the unsmoothed trace (below). An explicit window of 3-5
+	 * points uses degree 2. */
 	{
-		double win = o->smooth_cm > 0.0 ? o->smooth_cm : AUTO_SMOOTH_CM;
-		half = (int)floor(win / (2.0 * dx) + 0.5);
-		if (half < 1)
-			half = 1;
+		if (o->smooth_cm > 0.0) {
+			half = (int)floor(o->smooth_cm / (2.0 * dx) + 0.5);
+			if (half < 1)
+				half = 1;
+			order = half >= 3 ? 4 : 2;
+		} else {
+			half = (int)floor(AUTO_SMOOTH_CM / (2.0 * dx) + 0.5);
+			if (half < 3)
+				half = 3;
+			order = 4;
+		}
 		if (half > 50)
 			half = 50;
 		if ((size_t)(2 * half + 1) > n)
 			half = (int)((n - 1) / 2);
-		order = half >= 4 ? 4 : 2;
 		if (order > 2 * half)
 			order = 2 * half;
+		if (order < 2)
+			order = 2;
 	}
 	if ((rc = irr_sg__apply(w.y, n, half, order, 0, w.s)) != IRR_OK ||
-	    (rc = irr_sg__apply(w.y, n, half, order >= 2 ? order : 2, 2, w.d2)) != IRR_OK) {
+	    (rc = irr_sg__apply(w.y, n, half, order, 2, w.d2)) != IRR_OK) {
 		irr_error_set(err, rc, name, 0, "smoothing failed");
 		goto done;
 	}
-	gain0 = irr_sg__noise_gain(half, order, 0);
-	gain2 = irr_sg__noise_gain(half, order >= 2 ? order : 2, 2);
+	gain2 = irr_sg__noise_gain(half, order, 2);
 
 	if (o->baseline)
 		hull_baseline(w.x, w.s, n, w.base, w.stk);
 	else
 		memset(w.base, 0, n * sizeof(double));
-	for (size_t i = 0; i < n; i++)
+	for (size_t i = 0; i < n; i++) {
 		w.c[i] = w.s[i] - w.base[i];
+		w.r[i] = w.y[i] - w.base[i];
+	}
 
 	/* Noise. sigma: the global robust level of the raw trace (white-noise
-	 * model). Per block two levels: the smoothed trace's (raw level times
-	 * the filter's gain) and the second derivative's, the latter also
-	 * measured directly as the robust spread of the filtered derivative, so
-	 * correlated noise and ripple (which second differences of the raw
-	 * trace under-rate) are judged at the scale the filter passes. A block
+	 * model); it is what min_snr counts in (a band needs a prominence of
+	 * min_snr raw-noise sd; the smoothed trace it is measured on is
+	 * quieter by the filter's gain, which is the margin that keeps noise
+	 * out). Per block two levels: the raw trace's, and the second
+	 * derivative's, the latter measured directly as the robust spread of
+	 * the filtered derivative, so correlated noise and ripple (which
+	 * second differences of the raw trace under-rate) are judged at the
+	 * scale the filter passes; the raw level is never below what the
+	 * derivative's spread implies. A block
 	 * takes the median of its own and its two neighbours' levels, so one
 	 * sharp band does not pass for noise; nothing goes below the global
 	 * white level. A floor keeps noise-free (synthetic or heavily
 	 * quantised) data from giving 0. */
 	{
 		double range = 0.0, lo = w.y[0], hi = w.y[0];
-		double *bn = w.nd2 + n, *bd = bn + nb; /* block levels */
+		double *bn = w.blk, *bd = w.blk + nb;
 		for (size_t i = 0; i < n; i++) {
 			if (w.y[i] < lo)
 				lo = w.y[i];
@@ -601,13 +654,13 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 			 * second differences. */
 			size_t a1 = a > 0 ? a - 1 : 0, e1 = e < n ? e + 1 : n;
 			double sb = (e1 - a1 >= 3) ? noise_of(w.y + a1, e1 - a1, w.scratch) : sigma;
-			bn[b] = (sb > sigma ? sb : sigma) * gain0;
+			bn[b] = sb > sigma ? sb : sigma;
 			for (size_t i = a; i < e; i++)
 				w.scratch[m++] = fabs(w.d2[i]);
 			sb = 1.4826 * median_inplace(w.scratch, m);
 			bd[b] = sb > sigma * gain2 ? sb : sigma * gain2;
-			if (bn[b] < bd[b] * gain0 / gain2)
-				bn[b] = bd[b] * gain0 / gain2;
+			if (bn[b] < bd[b] / gain2)
+				bn[b] = bd[b] / gain2;
 		}
 		for (size_t i = 0; i < n; i++) {
 			size_t b = i / NOISE_BLOCK;
@@ -712,14 +765,22 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 			 * only down to the valley that parts it from the next band; a
 			 * side that does not get there is mirrored from the other),
 			 * unless the band stands on a pedestal (a sharp C-H band on a
-			 * broad O-H band), seen as a half-height width much larger
-			 * than the width at half prominence: then the latter, which
-			 * is the sharp band's own. */
-			{
+			 * broad O-H band), seen as a half-height width, reached on
+			 * both sides, much larger than the width at half prominence:
+			 * then the latter, which is the sharp band's own. */
+			for (int pass = 0; pass < 2; pass++) {
+				/* Pass 0 on the smoothed trace; a band narrower than
+				 * twice the window is measured again (pass 1) on the
+				 * unsmoothed one, which the filter has not widened;
+				 * its noise moves the crossings by only noise/slope. */
+				const double *tr = pass == 0 ? w.c : w.r;
 				double lo1, hi1, lo2, hi2;
-				int ok1 = width_at(&w, n, i, lv, rv, p.position, 0.5 * h, &lo1, &hi1);
-				int ok2 = width_at(&w, n, i, lv, rv, p.position, h - 0.5 * p.prominence, &lo2, &hi2);
-				if (ok1 && (!ok2 || hi1 - lo1 <= 1.5 * (hi2 - lo2))) {
+				int ok1 = width_at(&w, tr, n, i, lv, rv, p.position, 0.5 * h, &lo1, &hi1);
+				int ok2 = width_at(&w, tr, n, i, lv, rv, p.position, h - 0.5 * p.prominence, &lo2, &hi2);
+				/* The pedestal case needs both half-height crossings: a
+				 * band of a close pair reaches half height on its free
+				 * side only, and its mirrored width is the better one. */
+				if (ok1 && (ok1 == 1 || !ok2 || hi1 - lo1 <= 1.5 * (hi2 - lo2))) {
 					p.low = lo1;
 					p.high = hi1;
 				} else if (ok1) {
@@ -739,6 +800,25 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 					p.high = p.position + 0.5 * fw;
 				}
 				p.fwhm = p.high - p.low;
+				if (p.fwhm >= 2.0 * (2 * half) * dx)
+					break;
+			}
+			/* Broad bands (>= 12 points wide): the vertex of a parabola
+			 * fitted over the top +-0.3 FWHM, re-centred once. */
+			{
+				size_t m = (size_t)floor(0.3 * p.fwhm / dx);
+				if (m >= 4 && !p.shoulder) {
+					double v = vertex_fit(w.c, i, m, lv, rv);
+					if (!isnan(v)) {
+						double t = (double)i + v;
+						size_t ic = (size_t)floor(t + 0.5);
+						double v2 = ic > lv && ic < rv ? vertex_fit(w.c, ic, m, lv, rv) : NAN;
+						if (!isnan(v2))
+							t = (double)ic + v2;
+						if (t > (double)lv && t < (double)rv)
+							p.position = x_at(w.x, n, t);
+					}
+				}
 			}
 			/* Area above the line joining the two valleys (a band on a
 			 * broad neighbour does not get the neighbour's area). */
@@ -799,14 +879,20 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 				size_t i = sig[q];
 				if (w.keep[i] & 3)
 					continue;
-				if (w.c[i] < o->min_snr * w.noise[i])
+				/* A shoulder must stand higher above the baseline than a
+				 * maximum (the rubber band lies on the noise's lowest
+				 * dips, which lifts every height by a few noise sd). */
+				if (w.c[i] < SHOULDER_SNR_FACTOR * o->min_snr * w.noise[i])
 					continue;
-				/* Next to a maximum (kept or not) it is that maximum's
-				 * top, not a separate band. */
+				/* Next to a kept maximum it is part of that maximum's
+				 * top (a flat top has two lobes), not a separate band.
+				 * A maximum too small to keep does not veto: its own
+				 * significant lobe makes it a band, reported as a
+				 * shoulder. */
 				{
 					int near = 0;
 					for (size_t j = i > 2 ? i - 2 : 1; j <= i + 2 && j + 1 < n; j++)
-						if (w.c[j] > w.c[j - 1] && w.c[j] >= w.c[j + 1])
+						if (w.keep[j] & 1)
 							near = 1;
 					if (near)
 						continue;

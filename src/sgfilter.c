@@ -116,7 +116,8 @@ int irr_sg__apply(const double *y, size_t n, int half, int order, int deriv,
 {
 	size_t w;
 	double *c;
-	if (!y || !out || n == 0 || half < 1 || order < 0 || deriv < 0 || deriv > order)
+	if (!y || !out || n == 0 || half < 1 || order < 0 || order > 2 * half ||
+	    order > SG_MAX_ORDER || deriv < 0 || deriv > order)
 		return IRR_EINPUT;
 	/* A window longer than the data shrinks to fit; if even that cannot
 	 * carry the polynomial, the data are too short to filter. */

@@ -42,13 +42,23 @@ typedef struct irr_peak_options {
 
 void irr_peak_options_init(irr_peak_options *o);
 
-/* Overlapping bands: two equal bands of FWHM w are both reported (maxima,
- * or maximum + shoulder) down to these separations, in units of w
- * (measured with the defaults at 1 cm-1 spacing, FWHM 12 cm-1, SNR 500;
- * tests/unit/test_peaks.c). Above 0.58 w (Lorentzian) and 0.85 w (Gaussian)
- * the pair has two maxima. */
-#define IRR_PEAKS_RESOLVE_LORENTZ 0.50
-#define IRR_PEAKS_RESOLVE_GAUSS 0.70
+/* Overlapping bands. Measured with the defaults at 1 cm-1 spacing, FWHM w
+ * = 12 cm-1, SNR 500 (tests/unit/test_peaks.c): a pair counts as resolved
+ * when each band is reported (maximum or shoulder) within 0.3 x their
+ * separation of its true position; the maxima of a close pair are pulled
+ * toward each other, by up to 25 % of the separation.
+ *   equal Lorentzians: resolved down to 0.70 w, as two maxima (from 0.45
+ *     to 0.65 w they show as one maximum at the pair's centre plus a
+ *     shoulder; below 0.45 w as one band);
+ *   equal Gaussians: down to 1.00 w;
+ *   Lorentzians 2:1 in height: down to 0.55 w (two maxima from 1.1 w;
+ *     below, the weaker as a shoulder, within 0.3 cm-1 of its position);
+ *   Gaussians 2:1: down to 0.85 w (two maxima from 1.25 w).
+ * The separations (units of w) are these constants. */
+#define IRR_PEAKS_RESOLVE_LORENTZ 0.70
+#define IRR_PEAKS_RESOLVE_GAUSS 1.00
+#define IRR_PEAKS_RESOLVE_LORENTZ_2TO1 0.55
+#define IRR_PEAKS_RESOLVE_GAUSS_2TO1 0.85
 
 typedef struct irr_peaklist irr_peaklist;
 
