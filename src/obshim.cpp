@@ -146,6 +146,28 @@ std::string log_text(obMessageLevel worst)
 	return out;
 }
 
+/* Open Babel reports a SMARTS syntax error as the pattern with a caret
+ * line under the fault; turn that into a position. */
+std::string smarts_reason()
+{
+	std::vector<std::string> msgs = obErrorLog.GetMessagesOfLevel(obError);
+	for (const std::string &m : msgs) {
+		size_t pos = 0;
+		while (pos < m.size()) {
+			size_t nl = m.find('\n', pos);
+			if (nl == std::string::npos)
+				nl = m.size();
+			std::string line = m.substr(pos, nl - pos);
+			pos = nl + 1;
+			size_t caret = line.find('^');
+			if (caret != std::string::npos &&
+			    line.find_first_not_of(" ^") == std::string::npos)
+				return "syntax error at position " + std::to_string(caret + 1);
+		}
+	}
+	return "";
+}
+
 /* The message counters are cumulative and not resettable; remember them. */
 struct LogMark {
 	unsigned errors, warnings;
@@ -371,7 +393,9 @@ extern "C" int irr_obshim__smarts_compile(const char *smarts, irr_obshim_smarts 
 		LogMark mark;
 		bool ok = p->pattern.Init(smarts);
 		if (!ok || mark.problem()) {
-			std::string text = log_text(obWarning);
+			std::string text = smarts_reason();
+			if (text.empty())
+				text = log_text(obWarning);
 			copy_text(why, why_size, text.empty() ? "Open Babel rejected the SMARTS" : text);
 			delete p;
 			obErrorLog.ClearLog();

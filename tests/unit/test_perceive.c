@@ -13,7 +13,10 @@
  * Compounds, IR of 1,3-diketones; from memory). Bond counts: the values
  * agree with RDKit 2022.09 (tests/scripts/rdkit_counts.sh does that on
  * many more molecules). Hazard classes: Bretherick's Handbook of Reactive
- * Chemical Hazards (azides, diazo, polynitro, peroxides; from memory). */
+ * Chemical Hazards (azides, diazo, polynitro, peroxides; from memory).
+ * The SMARTS tables in tests/data/molecules/ are fictional demo tables of
+ * the Larkspur Process Chemistry lab; what they match follows from the
+ * group names. Run from the repository root (tests/run-all does). */
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
@@ -483,6 +486,62 @@ static void merged_entries_carry_all_atoms(void **state)
 	irr_inventory_free(NULL);
 }
 
+static void smarts_groups_from_a_user_table(void **state)
+{
+	(void)state;
+	irr_tables *t = NULL;
+	irr_error err;
+	irr_error_clear(&err);
+	const char *files[] = {"tests/data/molecules/smarts-groups.json"};
+	if (irr_tables_load(&t, "", files, 1, &err) != IRR_OK)
+		fail_msg("%s: %s", err.file, err.message);
+	/* N,N'-di-Boc-ethylenediamine: two Boc groups (tert-butoxycarbonyl,
+	 * by the name), each matched by the table's SMARTS with its 8 atoms. */
+	irr_molecule *m = NULL;
+	irr_inventory *inv = NULL;
+	assert_int_equal(irr_molecule_from_smiles(&m, "CC(C)(C)OC(=O)NCCNC(=O)OC(C)(C)C", "SMILES",
+	                                          &err), IRR_OK);
+	assert_int_equal(irr_perceive(&inv, m, t, &err), IRR_OK);
+	const irr_group *g = irr_inventory_find(inv, "larkspur_boc");
+	assert_non_null(g);
+	assert_int_equal(g->count, 2);
+	assert_int_equal(g->natoms, 16);
+	assert_null(irr_inventory_find(inv, "larkspur_tms_ether"));
+	/* The perception keys are still there beside the table group. */
+	assert_non_null(irr_inventory_find(inv, "carbamate"));
+	irr_inventory_free(inv);
+	irr_molecule_free(m);
+	/* Methoxytrimethylsilane: one TMS ether, no Boc; matching twice with the
+	 * same tables reuses the compiled patterns. */
+	assert_int_equal(irr_molecule_from_smiles(&m, "C[Si](C)(C)OC", "SMILES", &err), IRR_OK);
+	for (int pass = 0; pass < 2; pass++) {
+		assert_int_equal(irr_perceive(&inv, m, t, &err), IRR_OK);
+		g = irr_inventory_find(inv, "larkspur_tms_ether");
+		assert_non_null(g);
+		assert_int_equal(g->count, 1);
+		assert_null(irr_inventory_find(inv, "larkspur_boc"));
+		irr_inventory_free(inv);
+	}
+	irr_tables_free(t);
+
+	/* A table whose SMARTS does not compile: an input error naming the
+	 * file, the group and the position. */
+	files[0] = "tests/data/molecules/smarts-broken.json";
+	t = NULL;
+	if (irr_tables_load(&t, "", files, 1, &err) == IRR_OK) {
+		assert_int_equal(irr_perceive(&inv, m, t, &err), IRR_EINPUT);
+		assert_null(inv);
+		assert_non_null(strstr(err.file, "smarts-broken.json"));
+		assert_non_null(strstr(err.message, "larkspur_broken"));
+		assert_non_null(strstr(err.message, "position 5"));
+		irr_tables_free(t);
+	} else {
+		/* The loader may check SMARTS itself; then it must name the file. */
+		assert_non_null(strstr(err.file, "smarts-broken.json"));
+	}
+	irr_molecule_free(m);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -494,6 +553,7 @@ int main(void)
 		cmocka_unit_test(cautions),
 		cmocka_unit_test(bond_counts),
 		cmocka_unit_test(merged_entries_carry_all_atoms),
+		cmocka_unit_test(smarts_groups_from_a_user_table),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
