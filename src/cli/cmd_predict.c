@@ -1,6 +1,7 @@
 /* cmd_predict.c: `irrecon predict SMILES`: the bands a proposed structure
  * must show, as an 80-column table grouped by spectral region or as JSON
  * ("irrecon.predict/1"), with the safety cautions for its groups. */
+#include <errno.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -78,7 +79,7 @@ static int read_structure_file(const char *path, char **smiles, char **name,
 	long lineno = 0;
 	*smiles = *name = NULL;
 	if (!f)
-		return irr_error_set(err, IRR_EIO, path, 0, "cannot open structure file");
+		return irr_error_set(err, IRR_EIO, path, 0, "cannot open structure file: %s", strerror(errno));
 	while ((len = getline(&line, &cap, f)) >= 0) {
 		char *p = line, *end;
 		lineno++;
@@ -170,6 +171,30 @@ static void fit(FILE *out, const char *s, int width)
 		fprintf(out, "%.*s>", width - 1, s);
 }
 
+/* Prints `text` after `lead`, wrapped at word breaks to `width` columns,
+ * continuation lines indented under the text. */
+static void wrap(FILE *out, const char *lead, const char *text, int width)
+{
+	int indent = (int)strlen(lead), col = indent;
+	fputs(lead, out);
+	while (*text) {
+		size_t w = strcspn(text, " ");
+		if (col > indent && col + 1 + (int)w > width) {
+			fprintf(out, "\n%*s", indent, "");
+			col = indent;
+		} else if (col > indent) {
+			fputc(' ', out);
+			col++;
+		}
+		fwrite(text, 1, w, out);
+		col += (int)w;
+		text += w;
+		while (*text == ' ')
+			text++;
+	}
+	fputc('\n', out);
+}
+
 static void print_text(FILE *out, const irr_molecule *m, const char *title,
                        const irr_inventory *inv, const irr_prediction *p,
                        const irr_tables *t, const irr_predict_options *po)
@@ -190,7 +215,7 @@ static void print_text(FILE *out, const irr_molecule *m, const char *title,
 	        c->o_h, c->n_h, c->c_n_triple, c->c_o_double, c->aromatic_rings,
 	        c->c_h_sp, c->c_h_sp2, c->c_h_sp3);
 	for (size_t i = 0; i < irr_inventory_caution_count(inv); i++)
-		fprintf(out, "  CAUTION: %s\n", irr_inventory_caution(inv, i));
+		wrap(out, "  CAUTION: ", irr_inventory_caution(inv, i), 79);
 	fprintf(out, "\nGroups found\n");
 	for (size_t i = 0; i < irr_inventory_group_count(inv); i++) {
 		const irr_group *g = irr_inventory_group(inv, i);
