@@ -715,8 +715,8 @@ static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *er
 			free(m);
 		}
 		/* T <= 0 has no absorbance; such points get the highest measured
-		 * one and are flagged saturated. */
-		ceiling = -log10(tminpos);
+		 * one (at least the floor's) and are flagged saturated. */
+		ceiling = fmax(-log10(tminpos), -log10(T_FLOOR));
 		for (size_t i = 0; i < n; i++)
 			y[i] = y[i] > 0 ? -log10(y[i]) : ceiling;
 	} else {
