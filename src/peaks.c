@@ -50,6 +50,7 @@
 /* Shoulders need a deeper second-derivative lobe than maxima need
  * prominence: the second derivative amplifies noise and ripple. */
 #define SHOULDER_SNR_FACTOR 1.6
+#define SHOULDER_REL_LOBE 0.10
 #define NOISE_BLOCK 96
 
 void irr_peak_options_init(irr_peak_options *o)
@@ -722,7 +723,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		for (size_t i = 1; i + 1 < n; i++)
 			if (w.keep[i] && w.c[i] - (w.lb[i] > w.rb[i] ? w.lb[i] : w.rb[i]) <
 			                     o->min_rel_height * hmax)
-				w.keep[i] = 0;
+				w.keep[i] = 4; /* real but below the floor: vetoes a shoulder */
 	}
 
 	/* Measure each kept maximum. Valleys between neighbouring kept maxima
@@ -731,7 +732,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		size_t *kidx = w.stk; /* reuse: indices of kept maxima */
 		size_t nk = 0;
 		for (size_t i = 0; i < n; i++)
-			if (w.keep[i])
+			if (w.keep[i] & 1)
 				kidx[nk++] = i;
 		for (size_t q = 0; q < nk; q++) {
 			size_t i = kidx[q];
@@ -885,20 +886,45 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 				if (w.c[i] < SHOULDER_SNR_FACTOR * o->min_snr * w.noise[i])
 					continue;
 				/* Next to a kept maximum it is part of that maximum's
-				 * top (a flat top has two lobes), not a separate band.
-				 * A maximum too small to keep does not veto: its own
+				 * top (a flat top has two lobes), not a separate band;
+				 * next to a maximum dropped by the relative floor it is
+				 * that small band, which stays dropped. A maximum too
+				 * faint for the noise threshold does not veto: its own
 				 * significant lobe makes it a band, reported as a
 				 * shoulder. */
 				{
 					int near = 0;
 					for (size_t j = i > 2 ? i - 2 : 1; j <= i + 2 && j + 1 < n; j++)
-						if (w.keep[j] & 1)
+						if (w.keep[j] & 5)
 							near = 1;
 					if (near)
 						continue;
 				}
 				if (in_saturated(w.x[i], sat, nsat, guard))
 					continue;
+				/* Against ripple where the noise is very low (digitised
+				 * or interpolated data): the lobe must be a tenth as deep
+				 * as that of the nearest kept maximum at least. */
+				{
+					size_t lo = 0, hi = nk, k;
+					double ref = 0.0;
+					while (lo < hi) {
+						size_t mid = (lo + hi) / 2;
+						if (kidx[mid] < i)
+							lo = mid + 1;
+						else
+							hi = mid;
+					}
+					k = lo < nk ? kidx[lo] : kidx[nk - 1];
+					if (lo > 0 && (lo == nk || i - kidx[lo - 1] < kidx[lo] - i))
+						k = kidx[lo - 1];
+					for (size_t j = k > 2 ? k - 2 : 0; j <= k + 2 && j < n; j++)
+						if (nd2[j] > ref)
+							ref = nd2[j];
+					double base = w.lb[i] > w.rb[i] ? w.lb[i] : w.rb[i];
+					if (nd2[i] - base < SHOULDER_REL_LOBE * ref)
+						continue;
+				}
 				{
 					irr_peak p;
 					double off, v;
