@@ -10,6 +10,7 @@
 #   env: IRRECON  the program (default $BUILD/irrecon, BUILD default build)
 #        CASES    only the cases whose names match this grep -E pattern
 #        KEEP=1   keep the per-case temporary folders (printed on failure)
+#        VERBOSE=1 print the error line of every passing case too
 set -u
 cd "$(dirname "$0")/../.."
 ROOT=$PWD
@@ -143,6 +144,7 @@ check_case() {  # case name; sets WHY on failure
 			WHY="files left beside the output: $(find "$TMP/out" -mindepth 1 -not -name existing.out -printf '%f ')"
 		fi
 	fi
+	[ -z "$WHY" ] && [ -n "${VERBOSE:-}" ] && echo "ok   $c: $err"
 	if [ -n "$WHY" ] && [ -n "${KEEP:-}" ]; then
 		WHY="$WHY [kept $TMP]"
 	else
