@@ -544,6 +544,27 @@ int irr_smarts_compile(irr_smarts **out, const char *smarts, irr_error *err)
 	*out = NULL;
 	if (!smarts || !*smarts)
 		return irr_error_set(err, IRR_EINPUT, "", 0, "empty SMARTS");
+	/* Brackets and parentheses first: Open Babel 3.1.1 leaks part of its
+	 * parse tree on such errors, and its message gives no position. */
+	{
+		long sq = 0, par = 0;
+		size_t open_sq = 0, open_par = 0;
+		for (size_t i = 0; smarts[i]; i++) {
+			char ch = smarts[i];
+			if (ch == '[' && sq++ == 0)
+				open_sq = i;
+			else if (ch == '(' && par++ == 0)
+				open_par = i;
+			else if ((ch == ']' && --sq < 0) || (ch == ')' && --par < 0))
+				return irr_error_set(err, IRR_EINPUT, "", 0,
+				                     "bad SMARTS \"%.80s\": unbalanced '%c' at position %zu",
+				                     smarts, ch, i + 1);
+		}
+		if (sq > 0 || par > 0)
+			return irr_error_set(err, IRR_EINPUT, "", 0,
+			                     "bad SMARTS \"%.80s\": unclosed '%c' at position %zu", smarts,
+			                     sq > 0 ? '[' : '(', (sq > 0 ? open_sq : open_par) + 1);
+	}
 	p = calloc(1, sizeof *p);
 	if (!p)
 		return irr_error_set(err, IRR_ENOMEM, "", 0, "out of memory");

@@ -315,7 +315,13 @@ static void smarts_matching(void **state)
 	p = NULL;
 	assert_int_equal(irr_smarts_compile(&p, "[C", &err), IRR_EINPUT);
 	assert_null(p);
-	assert_non_null(strstr(err.message, "SMARTS"));
+	assert_non_null(strstr(err.message, "unclosed '[' at position 1"));
+	assert_int_equal(irr_smarts_compile(&p, "CC)", &err), IRR_EINPUT);
+	assert_non_null(strstr(err.message, "unbalanced ')' at position 3"));
+	/* Open Babel's own verdict, with the position of its caret. */
+	assert_int_equal(irr_smarts_compile(&p, "[C;Q]", &err), IRR_EINPUT);
+	assert_null(p);
+	assert_non_null(strstr(err.message, "position 4"));
 	irr_smarts_free(NULL);
 	irr_molecule_free(NULL);
 }
