@@ -30,8 +30,9 @@
 #define FINGERPRINT_PEAK  0.4   /* weight of unexplained peaks below 1500 cm-1 */
 #define DECISIVE_WEIGHT   0.5   /* table weight from which a missing band decides */
 #define FINGERPRINT_DECISIVE_WEIGHT 0.8
-#define DECISIVE_REL      0.5   /* an unexplained peak this strong (>= 1500 cm-1) decides */
+#define DECISIVE_REL      0.4   /* an unexplained peak this strong (>= 1500 cm-1) decides */
 #define SPIKE_FWHM        6.0   /* narrower unexplained peaks never decide alone */
+#define HBOND_FWHM        150.0 /* an O-H/N-H band this wide is hydrogen-bonded */
 #define MAX_CANDIDATES    4
 #define NOISY_FRAC        0.08  /* noise above this fraction of the strongest peak */
 
@@ -614,12 +615,15 @@ static double pair_cost(const irr_band *b, int ec, const irr_peak *p, const irr_
 			return IRR_ASSIGN_FORBIDDEN;  /* nor a weak overtone the strongest band */
 		cost += 0.3 * abs(ec - oc);
 	}
-	/* Shape: a broad O-H is not a sharp N-H. */
+	/* Shape: a broad O-H is not a sharp N-H. A broad band never takes a
+	 * peak narrower than half the broad threshold, and a strong broad band
+	 * only a broad peak or a strong one. */
 	if (!p->saturated) {
 		if (is_broad_shape(b->shape)) {
 			if (!p->broad) {
-				if (p->fwhm > 0 && b->shape == IRR_SHAPE_VERY_BROAD &&
-				    p->fwhm < 0.5 * c->opt.peaks.broad_cm)
+				if (p->fwhm > 0 && p->fwhm < 0.5 * c->opt.peaks.broad_cm)
+					return IRR_ASSIGN_FORBIDDEN;
+				if (p->fwhm > 0 && iclass(b->intensity) >= 3 && oc < 3)
 					return IRR_ASSIGN_FORBIDDEN;
 				cost += p->fwhm > 0 ? 0.6 : 0.2;
 			}
@@ -841,6 +845,25 @@ static int missing_decides(const irr_check *c, size_t i)
 	return ec >= 2 && gt > 0 && gf < 0.5 * gt;
 }
 
+/* Strength of an unexplained peak for the decisive test: its height
+ * relative to the strongest, raised by half above 2500 cm-1 under ATR,
+ * which weakens bands there (common practice), and more for a wide O-H/N-H
+ * band when the structure has neither. */
+static double decisive_strength(const irr_check *c, const irr_peak *p)
+{
+	double s = p->rel_height;
+	const irr_counts *k = irr_inventory_counts(c->inv);
+	if (c->opt.sampling == IRR_SAMPLING_ATR && p->position > 2500)
+		s *= 1.5;
+	/* A wide H-bonded O-H/N-H band where the structure has no O-H or N-H
+	 * at all: its area makes it a major band even when its height is
+	 * modest. */
+	if (p->broad && p->fwhm >= HBOND_FWHM && p->position >= 3100 && p->position <= 3600 &&
+	    k->o_h == 0 && k->n_h == 0)
+		s *= 2.5;
+	return s;
+}
+
 /* ---- The run ---- */
 
 int irr_check_run(irr_check *c, irr_error *err)
@@ -1023,9 +1046,9 @@ int irr_check_run(irr_check *c, irr_error *err)
 
 	/* 5. Peaks not assigned: extra structure of the product's own bands. A
 	 * second peak inside a window is the product's when it is weak, in the
-	 * fingerprint or C-H stretching region, under a broad band, or the
-	 * group occurs several times; a medium or strong second peak in the
-	 * diagnostic region is not (one N-H band for a secondary amine). */
+	 * fingerprint or C-H stretching region, or the group occurs several
+	 * times; a medium or strong second maximum in the diagnostic region is
+	 * not (one N-H band for a secondary amine, one O-H band for a phenol). */
 	for (size_t j = 0; j < np; j++) {
 		irr_observed *o = &c->obs[j];
 		const irr_peak *p = o->peak;
@@ -1062,7 +1085,7 @@ int irr_check_run(irr_check *c, irr_error *err)
 				continue;
 			ok = peak_class(p) == 1 || p->position < 1500 ||
 			     (p->position > 2800 && p->position < 3120 && !p->broad) ||
-			     is_broad_shape(b->shape) || b->group_count > 1;
+			     b->group_count > 1;
 			if (!ok && e->status == IRR_BAND_FOUND && e->peak >= 0) {
 				const irr_peak *q = c->obs[e->peak].peak;
 				ok = !q->saturated ? p->height < 0.5 * q->height : 1;
@@ -1074,6 +1097,22 @@ int irr_check_run(irr_check *c, irr_error *err)
 			d = fabs(p->position - b->typical);
 			if (d < bestd)
 				bestd = d, best = (long)i;
+		}
+		/* A wide band in the X-H region whose span holds an O-H or N-H
+		 * stretch the product explains is the hydrogen-bonded envelope of
+		 * that stretch. Common practice. */
+		if (shoulder < 0 && p->broad && p->high > p->low && p->position >= 3000 &&
+		    p->position <= 3600) {
+			for (size_t k = 0; k < np && shoulder < 0; k++) {
+				const irr_observed *q = &c->obs[k];
+				const irr_band *qb;
+				if (q->expected < 0 || c->exp[q->expected].peak != (long)k)
+					continue;
+				qb = c->exp[q->expected].band;
+				if ((strstr(qb->label, "O-H stretch") || strstr(qb->label, "N-H stretch")) &&
+				    q->peak->position >= p->low - 20 && q->peak->position <= p->high + 20)
+					shoulder = q->expected;
+			}
 		}
 		if (shoulder >= 0)
 			best = shoulder;
@@ -1211,8 +1250,8 @@ int irr_check_run(irr_check *c, irr_error *err)
 		}
 	}
 	{
-		/* Moisture: a weak broad O-H band with (or without) a weak H-O-H
-		 * bend, both weak against the product's own bands. */
+		/* Moisture: a weak broad O-H band with a weak H-O-H bend, both
+		 * weak against the product's own bands. */
 		const irr_solvents__air *air = irr_solvents__atmosphere(c->sl->lib);
 		long oh = -1;
 		for (size_t j = 0; j < np && air->nmoist; j++) {
@@ -1221,6 +1260,19 @@ int irr_check_run(irr_check *c, irr_error *err)
 			    p->rel_height <= air->moist_max_rel &&
 			    peak_in(p, air->moist[0].low, air->moist[0].high, 0))
 				oh = (long)j;
+		}
+		/* ... and only with its H-O-H bend beside it. */
+		if (oh >= 0 && air->nmoist > 1) {
+			int bend = 0;
+			for (size_t j = 0; j < np; j++) {
+				const irr_peak *p = c->obs[j].peak;
+				if (c->obs[j].status == IRR_PEAK_UNEXPLAINED && !p->saturated &&
+				    p->height <= c->obs[oh].peak->height &&
+				    peak_in(p, air->moist[1].low, air->moist[1].high, 0))
+					bend = 1;
+			}
+			if (!bend)
+				oh = -1;
 		}
 		if (oh >= 0) {
 			for (size_t j = 0; j < np; j++) {
@@ -1421,7 +1473,7 @@ int irr_check_run(irr_check *c, irr_error *err)
 				char cl[200] = "";
 				int dec = p->saturated ? p->position >= 1500
 				        : (p->fwhm <= 0 || p->fwhm >= SPIKE_FWHM) &&
-				          p->rel_height >= DECISIVE_REL && p->position >= 1500;
+				          decisive_strength(c, p) >= DECISIVE_REL && p->position >= 1500;
 				if ((pass == 0) != (dec != 0))
 					continue;
 				if (pass == 1 && p->intensity == IRR_INT_WEAK)
