@@ -197,10 +197,13 @@ static int add_component(double *y, const double *x, size_t n,
 	irr_inventory *inv = NULL;
 	irr_prediction *p = NULL;
 	irr_predict_options po;
-	char what[32];
+	char what[64];
 	int rc;
 
-	snprintf(what, sizeof what, "component %zu", idx + 1);
+	if (c->name)
+		snprintf(what, sizeof what, "%s", c->name);
+	else
+		snprintf(what, sizeof what, "component %zu", idx + 1);
 	irr_predict_options_init(&po);
 	po.phase = o->phase;
 	/* Tabulated classes describe transmission spectra; ATR is applied here

@@ -43,6 +43,7 @@ typedef struct irr_synth_component {
 	const char *smiles;
 	double fraction;           /* share of the mixture, > 0; the shares are
 	                              rescaled to sum to 1 */
+	const char *name;          /* used in error messages; NULL: "component N" */
 } irr_synth_component;
 
 /* The Lorentzian (Cauchy) line shape with its maximum `height` at x0 and
@@ -67,8 +68,8 @@ void irr_synth_add_prediction(double *y, const double *x, size_t n,
  * for transmission, ATR applied as a wavelength factor), its bands summed
  * with its share, the sum scaled to o->max_absorbance, then baseline, CO2
  * and noise added. The result is an ascending cm-1 spectrum in o->y_units,
- * named `name` (NULL: "synthetic"). A bad SMILES is IRR_EINPUT naming
- * "component N". Caller owns *out (irr_spectrum_free). */
+ * named `name` (NULL: "synthetic"). A bad SMILES is IRR_EINPUT naming the
+ * component (its `name`, else "component N"). Caller owns *out (irr_spectrum_free). */
 int irr_synth_mixture(irr_spectrum **out, const irr_synth_component *c,
                       size_t n, const irr_tables *t,
                       const irr_synth_options *o, const char *name,

@@ -84,6 +84,7 @@ static int parse_component(char *s, irr_synth_component *c)
 	*colon = '\0';
 	c->smiles = s;
 	c->fraction = v;
+	c->name = NULL;
 	return 0;
 }
 
@@ -160,6 +161,7 @@ int cmd_synth(int argc, char **argv)
 	irr_synth_options so;
 	irr_write_options wo;
 	irr_synth_component comp[MAX_COMPONENTS + 1];
+	char comp_names[MAX_COMPONENTS][24];
 	size_t ncomp = 0;
 	const char *structure = NULL, *output = "-", *format = NULL, *tables_dir = NULL;
 	char *smiles = NULL, *text = NULL;
@@ -274,8 +276,11 @@ int cmd_synth(int argc, char **argv)
 		return cli_usage_error(CMD, "unexpected argument '%s'", argv[optind]);
 	if (!structure && ncomp == 0)
 		return cli_usage_error(CMD, "give --structure or at least one --component");
-	for (size_t i = 0; i < ncomp; i++)
+	for (size_t i = 0; i < ncomp; i++) {
+		snprintf(comp_names[i], sizeof comp_names[i], "--component %zu", i + 1);
+		comp[i].name = comp_names[i];
 		sum += comp[i].fraction;
+	}
 	if (structure) {
 		if (sum >= 1.0)
 			return cli_usage_error(CMD, "the component shares sum to %g: nothing left for --structure", sum);
@@ -285,6 +290,7 @@ int cmd_synth(int argc, char **argv)
 		memmove(comp + 1, comp, ncomp * sizeof *comp);
 		comp[0].smiles = smiles;
 		comp[0].fraction = 1.0 - sum;
+		comp[0].name = structure_is_file ? structure : "--structure";
 		ncomp++;
 	}
 	if (!format)

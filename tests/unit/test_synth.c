@@ -439,7 +439,7 @@ static void synthesized_spectrum_has_grid_scale_and_bands(void **state)
 {
 	irr_tables *t = tables();
 	irr_synth_options o;
-	irr_synth_component c = {"CCC(C)=O", 1.0}; /* 2-butanone */
+	irr_synth_component c = {"CCC(C)=O", 1.0, NULL}; /* 2-butanone */
 	irr_spectrum *s = NULL;
 	irr_error err;
 	double where = 0;
@@ -469,7 +469,7 @@ static void atr_scales_bands_by_inverse_wavenumber(void **state)
 {
 	irr_tables *t = tables();
 	irr_synth_options o;
-	irr_synth_component c = {"CC#N", 1.0}; /* acetonitrile */
+	irr_synth_component c = {"CC#N", 1.0, NULL}; /* acetonitrile */
 	irr_spectrum *atr = NULL, *tr = NULL;
 	irr_error err;
 	double pn, pb, hn_a, hb_a, hn_t, hb_t, ratio;
@@ -528,9 +528,9 @@ static void mixture_shares_scale_components(void **state)
 	 * 0.35/0.15 are rescaled to 0.7/0.3. */
 	irr_tables *t = tables();
 	irr_synth_options o;
-	irr_synth_component u[] = {{"C1CCCCC1", 1.0}}, v[] = {{"CC#N", 1.0}};
-	irr_synth_component m1[] = {{"C1CCCCC1", 0.35}, {"CC#N", 0.15}};
-	irr_synth_component m2[] = {{"C1CCCCC1", 2.0}, {"CC#N", 2.0}};
+	irr_synth_component u[] = {{"C1CCCCC1", 1.0, NULL}}, v[] = {{"CC#N", 1.0, NULL}};
+	irr_synth_component m1[] = {{"C1CCCCC1", 0.35, NULL}, {"CC#N", 0.15, NULL}};
+	irr_synth_component m2[] = {{"C1CCCCC1", 2.0, NULL}, {"CC#N", 2.0, NULL}};
 	irr_spectrum *su = NULL, *sv = NULL, *s1 = NULL, *s2 = NULL;
 	irr_error err;
 	double a1, b1, a2, b2, r1, r2, got;
@@ -576,7 +576,7 @@ static void noise_is_seeded_and_has_the_asked_rms(void **state)
 {
 	irr_tables *t = tables();
 	irr_synth_options o;
-	irr_synth_component c = {"CCO", 1.0};
+	irr_synth_component c = {"CCO", 1.0, NULL};
 	irr_spectrum *clean = NULL, *n1 = NULL, *n1b = NULL, *n2 = NULL;
 	irr_error err;
 	size_t n;
@@ -611,7 +611,7 @@ static void baseline_and_co2_are_added(void **state)
 {
 	irr_tables *t = tables();
 	irr_synth_options o;
-	irr_synth_component c = {"CCCCCC", 1.0}; /* n-hexane: nothing near 2350 or 667 */
+	irr_synth_component c = {"CCCCCC", 1.0, NULL}; /* n-hexane: nothing near 2350 or 667 */
 	irr_spectrum *plain = NULL, *extra = NULL;
 	irr_error err;
 	double p;
@@ -642,8 +642,8 @@ static void bad_input_is_refused_with_a_reason(void **state)
 {
 	irr_tables *t = tables();
 	irr_synth_options o;
-	irr_synth_component good = {"CCO", 1.0}, bad[] = {{"CCO", 0.5}, {"C1CC(", 0.5}};
-	irr_synth_component zero = {"CCO", 0.0};
+	irr_synth_component good = {"CCO", 1.0, NULL}, bad[] = {{"CCO", 0.5, NULL}, {"C1CC(", 0.5, NULL}};
+	irr_synth_component zero = {"CCO", 0.0, NULL};
 	irr_spectrum *s = NULL;
 	irr_error err;
 	(void)state;
