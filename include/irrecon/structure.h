@@ -1,6 +1,12 @@
 /* irrecon/structure.h: the "read structure" stage. Parses SMILES (through
  * the Open Babel shim) into a molecule object with per-atom and per-bond
- * facts that perception works on, and matches SMARTS for user tables. */
+ * facts that perception works on, and matches SMARTS for user tables.
+ *
+ * Not thread-safe: Open Babel keeps process-global state (plugin and option
+ * registries, its message log, locale switching). Run parallel work in
+ * separate processes. Aromaticity is Open Babel's model; hybridization is
+ * derived from the bonds (RDKit's convention for carbon); ring facts come
+ * from Open Babel's SSSR. */
 #ifndef IRRECON_STRUCTURE_H
 #define IRRECON_STRUCTURE_H
 
@@ -24,14 +30,17 @@ typedef struct irr_atom {
 	int in_ring;
 	int ring_size;      /* smallest SSSR ring containing the atom, 0 if none */
 	int degree;         /* heavy-atom neighbours */
-	int component;      /* 0-based index of the '.'-separated component */
+	int component;      /* 0-based index of the '.'-separated component
+	                       (connected component, numbered by first atom) */
 } irr_atom;
 
 typedef struct irr_bond {
 	int a, b;           /* 0-based atom indices */
 	int order;          /* 1, 2, 3; aromatic bonds 5 */
 	int in_ring;
-	int stereo;         /* for double bonds: 1 = cis (Z), 2 = trans (E), 0 = unknown */
+	int stereo;         /* for double bonds: 1 = cis (Z), 2 = trans (E), 0 = unknown;
+	                       relative to the lowest-numbered heavy neighbour on
+	                       each end (Z/E for 1,2-disubstituted C=C) */
 } irr_bond;
 
 typedef struct irr_molecule irr_molecule;
