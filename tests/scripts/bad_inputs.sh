@@ -23,7 +23,13 @@ if [ ! -x "$IRRECON" ]; then
 	echo "bad_inputs: $IRRECON is not built (run make first)"
 	exit 1
 fi
-IRRECON=$(cd "$(dirname "$IRRECON")" && pwd)/$(basename "$IRRECON")
+# A private copy: in a shared tree another `make` may relink the program
+# while the corpus runs.
+PROG_DIR=$(mktemp -d "${TMPDIR:-/tmp}/irrecon-bad-prog.XXXXXX")
+trap 'rm -rf "$PROG_DIR"' EXIT
+cp "$IRRECON" "$PROG_DIR/irrecon" || { echo "bad_inputs: cannot copy $IRRECON"; exit 1; }
+SHOWN=$IRRECON
+IRRECON=$PROG_DIR/irrecon
 
 pass=0; fail=0; failed=()
 SENTINEL="irrecon bad-input corpus: this file existed before the run and must stay unchanged."
@@ -53,7 +59,8 @@ subst() {
 check_case() {  # case name; sets WHY on failure
 	local c=$1 exp=$DIR/$1.expect
 	local run="" status="" where="" fragment="" stdin="" timeout_s=20 stdout_rule=empty
-	local setups=() key val
+	local stderr_rule=one out_rule=kept
+	local setups=() out_has=() key val
 	WHY=""
 	while IFS= read -r line || [ -n "$line" ]; do
 		case $line in ''|'#'*) continue ;; esac
@@ -68,6 +75,9 @@ check_case() {  # case name; sets WHY on failure
 		stdin) stdin=$val ;;
 		timeout) timeout_s=$val ;;
 		stdout) stdout_rule=$val ;;
+		stderr) stderr_rule=$val ;;
+		out) out_rule=$val ;;
+		out-has) out_has+=("$val") ;;
 		setup) setups+=("$val") ;;
 		*) WHY="unknown field '$key' in $exp"; return 1 ;;
 		esac
@@ -92,6 +102,8 @@ check_case() {  # case name; sets WHY on failure
 			{ printf '%s' "${5:-}"; for ((i = 0; i < $4; i++)); do printf '%s' "$3"; done; printf '%s\n' "${6:-}"; } >"$2" ;;
 		copy)    # copy FROM TO
 			cp "$2" "$3" || { WHY="setup failed: $s"; return 1; } ;;
+		link)    # link TARGET PATH: a symbolic link
+			ln -s "$2" "$3" || { WHY="setup failed: $s"; return 1; } ;;
 		*) WHY="unknown setup '$1' in $exp"; return 1 ;;
 		esac
 	done
@@ -114,6 +126,16 @@ check_case() {  # case name; sets WHY on failure
 		WHY="sanitizer report: $(grep -m 2 -E 'ERROR|runtime error|SUMMARY' "$TMP/stderr")"
 	elif [ "$rc" != "$status" ]; then
 		WHY="exit $rc, expected $status; stderr: $(head -n 2 "$TMP/stderr")"
+	elif [ "$stderr_rule" = summary ]; then
+		# A batch: stderr is the summary; one of its lines names the
+		# failed row as "<where>: message".
+		local want re
+		want=$(subst "$where")
+		re=$(printf '%s' "${want%:\*}" | sed 's|[][\.*^$()+?{}]|\\&|g')
+		[ "${want%:\*}" != "$want" ] && re="$re:[1-9][0-9]*"
+		if ! grep -E -- "(^|[[:space:]])$re: " "$TMP/stderr" | grep -qiF -- "$fragment"; then
+			WHY="no stderr line names '$want: ...$fragment...': $(head -n 12 "$TMP/stderr" | tr '\n' '|')"
+		fi
 	elif [ "$nlines" -ne 1 ] || [ -z "$err" ]; then
 		WHY="stderr has $nlines lines, expected exactly one: $(head -n 4 "$TMP/stderr" | tr '\n' '|')"
 	else
@@ -138,13 +160,20 @@ check_case() {  # case name; sets WHY on failure
 		WHY="wrote to stdout on error: $(head -c 200 "$TMP/stdout")"
 	fi
 	if [ -z "$WHY" ]; then
-		if [ "$(cat "$TMP/out/existing.out")" != "$SENTINEL" ]; then
+		if [ "$out_rule" = kept ] && [ "$(cat "$TMP/out/existing.out")" != "$SENTINEL" ]; then
 			WHY="the existing output file was changed"
+		elif [ "$out_rule" = replaced ] && [ "$(cat "$TMP/out/existing.out")" = "$SENTINEL" ]; then
+			WHY="the output file was not written"
 		elif [ "$(find "$TMP/out" -mindepth 1 | wc -l)" -ne 1 ]; then
 			WHY="files left beside the output: $(find "$TMP/out" -mindepth 1 -not -name existing.out -printf '%f ')"
 		fi
 	fi
-	[ -z "$WHY" ] && [ -n "${VERBOSE:-}" ] && echo "ok   $c: $err"
+	local h
+	for h in "${out_has[@]}"; do
+		[ -n "$WHY" ] && break
+		grep -qF -- "$(subst "$h")" "$TMP/out/existing.out" || WHY="the output lacks '$h'"
+	done
+	[ -z "$WHY" ] && [ -n "${VERBOSE:-}" ] && echo "ok   $c: $(head -n 1 <<<"$err")"
 	if [ -n "$WHY" ] && [ -n "${KEEP:-}" ]; then
 		WHY="$WHY [kept $TMP]"
 	else
@@ -172,5 +201,5 @@ if [ -z "${CASES:-}" ] && [ "$n" -lt $MIN_CASES ]; then
 	echo "bad_inputs: only $n cases in $DIR (at least $MIN_CASES wanted)"
 	fail=$((fail + 1))
 fi
-echo "bad inputs: $pass passed, $fail failed (program: $IRRECON)"
+echo "bad inputs: $pass passed, $fail failed (program: $SHOWN)"
 [ "$fail" -eq 0 ]
