@@ -38,6 +38,10 @@ void irr_peaks__classify(irr_peaklist *pl, const irr_peak_options *o);
  * alias y. Returns IRR_OK, IRR_EINPUT (bad parameters) or IRR_ENOMEM. */
 int irr_sg__apply(const double *y, size_t n, int half, int order, int deriv,
                   double *out);
+/* Smoothing (out s0) and second derivative (s2) of the same window and
+ * degree in one pass (order >= 2, 2*half+1 <= n, half <= 50). */
+int irr_sg__smooth_d2(const double *y, size_t n, int half, int order, double *s0,
+                      double *s2);
 /* Coefficients of the centre window into c[0..2*half] (c[half] is the
  * centre point). Returns IRR_OK or IRR_EINPUT. */
 int irr_sg__coefficients(int half, int order, int deriv, int at, double *c);

@@ -496,8 +496,15 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 			                     "wavenumbers must be strictly ascending (point %zu)", i + 1);
 	}
 
-	/* Median spacing and uniformity. */
-	{
+	/* Uniform spacing (every step within 2 % of the mean step), else the
+	 * median step for resampling. */
+	med = (x0[n0 - 1] - x0[0]) / (double)(n0 - 1);
+	for (size_t i = 0; i + 1 < n0; i++)
+		if (fabs((x0[i + 1] - x0[i]) - med) > 0.02 * med) {
+			uniform = 0;
+			break;
+		}
+	if (!uniform) {
 		double *tmp = malloc((n0 - 1) * sizeof *tmp);
 		if (!tmp)
 			return irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
@@ -505,11 +512,6 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 			tmp[i] = x0[i + 1] - x0[i];
 		med = median_inplace(tmp, n0 - 1);
 		free(tmp);
-		for (size_t i = 0; i + 1 < n0; i++)
-			if (fabs((x0[i + 1] - x0[i]) - med) > 0.02 * med) {
-				uniform = 0;
-				break;
-			}
 	}
 	if (uniform) {
 		n = n0;
@@ -602,8 +604,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		if (order < 2)
 			order = 2;
 	}
-	if ((rc = irr_sg__apply(w.y, n, half, order, 0, w.s)) != IRR_OK ||
-	    (rc = irr_sg__apply(w.y, n, half, order, 2, w.d2)) != IRR_OK) {
+	if ((rc = irr_sg__smooth_d2(w.y, n, half, order, w.s, w.d2)) != IRR_OK) {
 		irr_error_set(err, rc, name, 0, "smoothing failed");
 		goto done;
 	}
@@ -642,6 +643,14 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 				hi = w.y[i];
 		}
 		range = hi - lo;
+		/* Block raw levels, then the global level. */
+		for (size_t b = 0; b < nb; b++) {
+			size_t a = b * NOISE_BLOCK, e = a + NOISE_BLOCK;
+			if (e > n)
+				e = n;
+			size_t a1 = a > 0 ? a - 1 : 0, e1 = e < n ? e + 1 : n;
+			bn[b] = (e1 - a1 >= 3) ? noise_of(w.y + a1, e1 - a1, w.scratch) : 0.0;
+		}
 		sigma = noise_of(w.y, n, w.scratch);
 		if (sigma < 1e-5 * range)
 			sigma = 1e-5 * range;
@@ -651,10 +660,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 			size_t a = b * NOISE_BLOCK, e = a + NOISE_BLOCK, m = 0;
 			if (e > n)
 				e = n;
-			/* Include a neighbour point each side so every block has
-			 * second differences. */
-			size_t a1 = a > 0 ? a - 1 : 0, e1 = e < n ? e + 1 : n;
-			double sb = (e1 - a1 >= 3) ? noise_of(w.y + a1, e1 - a1, w.scratch) : sigma;
+			double sb = bn[b];
 			bn[b] = sb > sigma ? sb : sigma;
 			for (size_t i = a; i < e; i++)
 				w.scratch[m++] = fabs(w.d2[i]);
@@ -663,10 +669,13 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 			if (bn[b] < bd[b] / gain2)
 				bn[b] = bd[b] / gain2;
 		}
-		for (size_t i = 0; i < n; i++) {
-			size_t b = i / NOISE_BLOCK;
-			w.noise[i] = med3(bn, nb, b);
-			w.nd2[i] = med3(bd, nb, b);
+		for (size_t b = 0; b < nb; b++) {
+			double sn = med3(bn, nb, b), sd = med3(bd, nb, b);
+			size_t e = (b + 1) * NOISE_BLOCK < n ? (b + 1) * NOISE_BLOCK : n;
+			for (size_t i = b * NOISE_BLOCK; i < e; i++) {
+				w.noise[i] = sn;
+				w.nd2[i] = sd;
+			}
 		}
 	}
 

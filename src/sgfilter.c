@@ -66,13 +66,23 @@ int irr_sg__coefficients(int half, int order, int deriv, int at, double *c)
 	/* The abscissa is scaled to u = j/half so the normal equations stay
 	 * well conditioned for wide windows and high degrees. */
 	scale = (double)half;
-	for (int a = 0; a < m; a++)
-		for (int b = 0; b < m; b++) {
-			double s = 0.0;
-			for (int j = -half; j <= half; j++)
-				s += pow((double)j / scale, a + b);
-			g[a * m + b] = s;
+	/* Power sums S_p = sum_j u_j^p, p = 0..2*order, by repeated products
+	 * (pow() here was the picker's largest cost). */
+	{
+		double ps[2 * SG_MAX_ORDER + 1];
+		for (int q = 0; q <= 2 * order; q++)
+			ps[q] = 0.0;
+		for (int j = -half; j <= half; j++) {
+			double u = (double)j / scale, t = 1.0;
+			for (int q = 0; q <= 2 * order; q++) {
+				ps[q] += t;
+				t *= u;
+			}
 		}
+		for (int a = 0; a < m; a++)
+			for (int b = 0; b < m; b++)
+				g[a * m + b] = ps[a + b];
+	}
 	/* w_k = d^deriv/du^deriv u^k at u = at/half. */
 	{
 		double u = (double)at / scale;
@@ -81,10 +91,12 @@ int irr_sg__coefficients(int half, int order, int deriv, int at, double *c)
 				w[k] = 0.0;
 				continue;
 			}
-			double f = 1.0;
+			double f = 1.0, t = 1.0;
 			for (int q = 0; q < deriv; q++)
 				f *= (double)(k - q);
-			w[k] = f * pow(u, k - deriv);
+			for (int q = 0; q < k - deriv; q++)
+				t *= u;
+			w[k] = f * t;
 		}
 	}
 	if (solve_small(g, w, m) != 0)
@@ -96,7 +108,10 @@ int irr_sg__coefficients(int half, int order, int deriv, int at, double *c)
 			p *= u;
 		}
 		/* Back from d/du to d/d(index). */
-		c[j + half] = s / pow(scale, deriv);
+		double sd = 1.0;
+		for (int q = 0; q < deriv; q++)
+			sd *= scale;
+		c[j + half] = s / sd;
 	}
 	return IRR_OK;
 }
@@ -111,11 +126,35 @@ double irr_sg__noise_gain(int half, int order, int deriv)
 	return sqrt(s);
 }
 
+/* The first and last `half` points: the end windows' polynomials
+ * evaluated off-centre. c is scratch of 2*half+1. */
+static int ends(const double *y, size_t n, int half, int order, int deriv, double *c,
+                double *out)
+{
+	size_t w = (size_t)(2 * half + 1);
+	for (int k = 0; k < half; k++) {
+		double s = 0.0;
+		if (irr_sg__coefficients(half, order, deriv, k - half, c) != IRR_OK)
+			return IRR_EINPUT;
+		for (size_t j = 0; j < w; j++)
+			s += c[j] * y[j];
+		out[k] = s;
+		if (irr_sg__coefficients(half, order, deriv, half - k, c) != IRR_OK)
+			return IRR_EINPUT;
+		s = 0.0;
+		for (size_t j = 0; j < w; j++)
+			s += c[j] * y[n - w + j];
+		out[n - 1 - (size_t)k] = s;
+	}
+	return IRR_OK;
+}
+
 int irr_sg__apply(const double *y, size_t n, int half, int order, int deriv,
                   double *out)
 {
 	size_t w;
 	double *c;
+	int rc;
 	if (!y || !out || n == 0 || half < 1 || order < 0 || order > 2 * half ||
 	    order > SG_MAX_ORDER || deriv < 0 || deriv > order)
 		return IRR_EINPUT;
@@ -145,27 +184,37 @@ int irr_sg__apply(const double *y, size_t n, int half, int order, int deriv,
 			s += c[j] * p[j];
 		out[i] = s;
 	}
-	/* Ends: the first (last) full window's polynomial at offsets -half..-1
-	 * (1..half). */
-	for (int k = 0; k < half; k++) {
-		double s;
-		if (irr_sg__coefficients(half, order, deriv, k - half, c) != IRR_OK) {
-			free(c);
-			return IRR_EINPUT;
-		}
-		s = 0.0;
-		for (size_t j = 0; j < w; j++)
-			s += c[j] * y[j];
-		out[k] = s;
-		if (irr_sg__coefficients(half, order, deriv, half - k, c) != IRR_OK) {
-			free(c);
-			return IRR_EINPUT;
-		}
-		s = 0.0;
-		for (size_t j = 0; j < w; j++)
-			s += c[j] * y[n - w + j];
-		out[n - 1 - (size_t)k] = s;
-	}
+	rc = ends(y, n, half, order, deriv, c, out);
 	free(c);
-	return IRR_OK;
+	return rc;
+}
+
+int irr_sg__smooth_d2(const double *y, size_t n, int half, int order, double *s0,
+                      double *s2)
+{
+	double c0[2 * 50 + 1], c2[2 * 50 + 1];
+	size_t h;
+	int rc;
+	if (!y || !s0 || !s2 || half < 1 || half > 50 || order < 2 || order > 2 * half ||
+	    order > SG_MAX_ORDER || (size_t)(2 * half + 1) > n)
+		return IRR_EINPUT;
+	if (irr_sg__coefficients(half, order, 0, 0, c0) != IRR_OK ||
+	    irr_sg__coefficients(half, order, 2, 0, c2) != IRR_OK)
+		return IRR_EINPUT;
+	h = (size_t)half;
+	/* Both centre sets are symmetric (even derivatives): fold the window
+	 * once, y[i-k] + y[i+k], and use it for both outputs. */
+	for (size_t i = h; i + h < n; i++) {
+		double a0 = c0[h] * y[i], a2 = c2[h] * y[i];
+		for (size_t k = 1; k <= h; k++) {
+			double f = y[i - k] + y[i + k];
+			a0 += c0[h + k] * f;
+			a2 += c2[h + k] * f;
+		}
+		s0[i] = a0;
+		s2[i] = a2;
+	}
+	if ((rc = ends(y, n, half, order, 0, c0, s0)) != IRR_OK)
+		return rc;
+	return ends(y, n, half, order, 2, c2, s2);
 }
