@@ -916,6 +916,16 @@ static void protonate_amine_salts(ctx *c)
 			acids--;
 		}
 	}
+	/* Then pyridine-type ring N (pyridine hydrochloride: pyridinium N-H). */
+	for (size_t i = 0; i < c->n && acids > 0; i++) {
+		if (EL(c, i) == 7 && AROM(c, i) && HC(c, i) == 0 && DEG(c, i) == 2 &&
+		    c->at[i].charge == 0) {
+			instance *x = emit(c, "ammonium", (int)i, -1, -1);
+			if (x)
+				x->attrs.n_h = 1;
+			acids--;
+		}
+	}
 }
 
 /* C=N (imine, oxime, hydrazone), cumulated systems, C#N, C#C. */

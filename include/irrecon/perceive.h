@@ -17,8 +17,9 @@
  *             lactam [ring_size, n_h], imide [ring_size, n_h], urea [n_h],
  *             carbamate [n_h], carbonate [ring_size]
  *   N:        amine [n_h = 2/1/0; aryl = N on an aromatic ring], ammonium [n_h =
- *             H on N+: 3/2/1/0; also an amine written with a separate HCl, HBr
- *             or HI component, e.g. "CCN.Cl"], imine, oxime, hydrazone, nitro [aryl], nitroso,
+ *             H on N+: 3/2/1/0; also an amine (aliphatic first, then aryl,
+ *             then pyridine-type N) written with a separate HCl, HBr or HI
+ *             component, e.g. "CCN.Cl"], imine, oxime, hydrazone, nitro [aryl], nitroso,
  *             azide, diazo, isocyanate, isothiocyanate, carbodiimide,
  *             nitrile [conjugated], isonitrile
  *   C-C:      alkyne_terminal, alkyne_internal,

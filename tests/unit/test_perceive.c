@@ -210,6 +210,11 @@ static void nitrogen_carbonyls_and_amines(void **state)
 	       W("ammonium", ANY, ANY, 3, ANY, ANY, NULL, 1), W("amine", ANY, ANY, ANY, ANY, ANY, NULL, 0));
 	EXPECT("ethylamine hydrochloride written neutral", "CCN.Cl", NULL,
 	       W("ammonium", ANY, ANY, 3, ANY, ANY, NULL, 1), W("amine", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("pyridine hydrochloride written neutral", "c1ccncc1.Cl", NULL,
+	       W("ammonium", ANY, ANY, 1, ANY, ANY, NULL, 1));
+	EXPECT("lidocaine hydrochloride: the amine, not the amide N, takes the proton",
+	       "CCN(CC)CC(=O)Nc1c(C)cccc1C.Cl", NULL, W("ammonium", ANY, ANY, 1, ANY, ANY, NULL, 1),
+	       W("amide", ANY, ANY, 1, ANY, ANY, NULL, 1), W("amine", ANY, ANY, ANY, ANY, ANY, NULL, 0));
 	EXPECT("tetramethylammonium bromide", "C[N+](C)(C)C.[Br-]", NULL,
 	       W("ammonium", ANY, ANY, 0, ANY, ANY, NULL, 1));
 	EXPECT("alanine zwitterion", "C[C@H]([NH3+])C([O-])=O", NULL,
