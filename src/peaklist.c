@@ -64,7 +64,8 @@ static int finish(irr_peaklist *pl, const long *lines, const char *name, irr_err
 {
 	irr_peak_options o;
 	if (pl->count == 0)
-		return irr_error_set(err, IRR_EINPUT, name, 0, "the peak list holds no peaks");
+		return irr_error_set(err, IRR_EINPUT, name, 0,
+		                     "the peak list is empty (no line holds a peak position)");
 	for (size_t i = 0; i < pl->count; i++) {
 		double p = pl->peaks[i].position;
 		if (p < pl->range_low || p > pl->range_high)
@@ -277,6 +278,8 @@ static int read_csv(irr_peaklist *pl, char *data, size_t len, const char *name,
 		if (!delim)
 			delim = strchr(l, '\t') ? '\t' : strchr(l, ';') ? ';' : strchr(l, ',') ? ',' : ' ';
 		nf = split(l, delim, f, 3);
+		if (nf == 0 || (nf == 1 && !f[0][0]))
+			continue; /* blank once quotes are taken off */
 		if (nf > 3)
 			return irr_error_set(err, IRR_EINPUT, name, line,
 			                     "more than 3 fields (want position[,intensity[,width]])");
