@@ -158,7 +158,7 @@ static void bad_lists_name_file_and_line(void **state)
 	read_bad(DATA "bad-number.csv", 3, "not a number");
 	read_bad(DATA "bad-outside-range.csv", 3, "outside the stated range");
 	read_bad(DATA "bad-fields.csv", 1, "more than 3 fields");
-	read_bad(DATA "bad-empty.csv", 0, "no peaks");
+	read_bad(DATA "bad-empty.csv", 0, "empty");
 	read_bad(DATA "bad-no-position.json", 3, "position");
 	read_bad(DATA "bad-truncated.json", 2, "JSON");
 	read_bad(DATA "bad-intensity-class.json", 4, "not a class");
