@@ -347,8 +347,8 @@ static void put_defs(sbuf *b, const layout *L)
 	sb_printf(b, "<pattern id=\"irr-pat-found\" width=\"6\" height=\"6\" patternUnits=\"userSpaceOnUse\">"
 	             "<rect width=\"6\" height=\"6\" fill=\"%s\" fill-opacity=\"0.16\"/></pattern>\n", C_FOUND);
 	sb_printf(b, "<pattern id=\"irr-pat-saturated\" width=\"8\" height=\"8\" patternUnits=\"userSpaceOnUse\">"
-	             "<rect width=\"8\" height=\"8\" fill=\"%s\" fill-opacity=\"0.10\"/>"
-	             "<path d=\"M0 4H8M4 0V8\" stroke=\"%s\" stroke-opacity=\"0.45\" stroke-width=\"0.8\"/></pattern>\n",
+	             "<rect width=\"8\" height=\"8\" fill=\"%s\" fill-opacity=\"0.07\"/>"
+	             "<path d=\"M0 4H8M4 0V8\" stroke=\"%s\" stroke-opacity=\"0.32\" stroke-width=\"0.7\"/></pattern>\n",
 	          C_SATURATED, C_SATURATED);
 	sb_printf(b, "<pattern id=\"irr-pat-missing\" width=\"6\" height=\"6\" patternUnits=\"userSpaceOnUse\" patternTransform=\"rotate(45)\">"
 	             "<rect width=\"6\" height=\"6\" fill=\"%s\" fill-opacity=\"0.08\"/>"
@@ -499,7 +499,7 @@ static void place_labels(sbuf *b, const layout *L, label_req *req, size_t nreq,
 						          num(req[r].ax), num(req[r].ay + dir * 6.0), num(lx), num(ly), INK_SOFT);
 					}
 					put_text(b, bx.x0 + 2.0, cy + fs * 0.36, fs, 0, 's', req[r].colour,
-					         " stroke=\"#ffffff\" stroke-width=\"3\" stroke-linejoin=\"round\" paint-order=\"stroke\"",
+					         " class=\"irr-label\" stroke=\"#ffffff\" stroke-width=\"3\" stroke-linejoin=\"round\" paint-order=\"stroke\"",
 					         req[r].text);
 				}
 			}
