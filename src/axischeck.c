@@ -134,13 +134,13 @@ int irr_axis_check(irr_axis_report **out, const irr_spectrum *s,
 			b->deviation = floor((b->found - b->reference) * 10.0 + 0.5) / 10.0;
 			b->status = fabs(b->deviation) <= b->tolerance + 1e-9 ? IRR_AXIS_WITHIN : IRR_AXIS_OUTSIDE;
 		} else if (b->reference < lo || b->reference > hi) {
-			b->reason = "outside the measured range";
+			b->reason = "outside measured range";
 		} else if (saturated) {
-			b->reason = "in a saturated band: position not measurable";
+			b->reason = "saturated band";
 		} else if (shoulder) {
-			b->reason = "only a shoulder: not resolved";
+			b->reason = "only a shoulder";
 		} else {
-			b->reason = "no band above the noise near it";
+			b->reason = "no band above noise";
 		}
 	}
 	irr_peaklist_free(pl);

@@ -37,7 +37,9 @@ typedef struct irr_axis_band {
 	double found;          /* cm-1 rounded to 0.1 as the references are (0 when not found) */
 	double deviation;      /* found - reference, judged inclusive (0 when not found) */
 	irr_axis_status status;
-	const char *reason;    /* static; why not found ("" otherwise) */
+	const char *reason;    /* static; why not found: "outside measured range",
+	                        * "saturated band", "only a shoulder", "no band
+	                        * above noise" ("" when found) */
 } irr_axis_band;
 
 typedef struct irr_axis_options {

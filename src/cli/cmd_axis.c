@@ -68,7 +68,7 @@ static char *render_table(const irr_axis_report *r, const char *path)
 	char a[32], b[32], c[32], d[40];
 	if (!f)
 		return NULL;
-	fprintf(f, "Wavenumber axis against polystyrene: %s\n\n", path);
+	fprintf(f, "Wavenumber axis against polystyrene (EP 2.2.24 / JP bands)\n%s\n\n", path);
 	fprintf(f, "  %9s  %9s  %9s  %9s  %s\n", "reference", "tolerance", "found", "deviation", "result");
 	for (size_t i = 0; i < nall; i++) {
 		const irr_axis_band *x = irr_axis_report_band(r, i);
@@ -87,15 +87,16 @@ static char *render_table(const irr_axis_report *r, const char *path)
 	}
 	fprintf(f, "\n");
 	if (nres == 0)
-		fprintf(f, "Axis NOT CONFIRMED: none of the %zu reference bands is resolved in this file.\n", nall);
+		fprintf(f, "Axis NOT CONFIRMED: none of the %zu reference bands is resolved.\n", nall);
 	else if (nout == 0)
-		fprintf(f, "Axis within tolerance: %zu of %zu reference bands resolved, all within; %zu not resolved.\n",
-		        nres, nall, nall - nres);
+		fprintf(f, "Axis within tolerance: %zu of %zu bands resolved, all within;\n"
+		           "%zu not resolved.\n", nres, nall, nall - nres);
 	else
-		fprintf(f, "Axis OUT OF TOLERANCE: %zu of %zu resolved bands outside; %zu not resolved.\n",
-		        nout, nres, nall - nres);
+		fprintf(f, "Axis OUT OF TOLERANCE: %zu of %zu resolved bands outside;\n"
+		           "%zu not resolved.\n", nout, nres, nall - nres);
 	if (nres > 0 && nres < nall)
-		fprintf(f, "Bands not resolved were not checked; a full check needs a film spectrum that shows them.\n");
+		fprintf(f, "Bands not resolved were not checked; a full check needs a film\n"
+		           "spectrum that shows them.\n");
 	if (fclose(f) != 0) {
 		free(buf);
 		return NULL;

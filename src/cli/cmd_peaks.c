@@ -171,7 +171,7 @@ static char *render_table(const irr_spectrum *s, const irr_peaklist *pl, const c
 	irr_peaklist_range(pl, &lo, &hi);
 	fprintf(f, "%s\n", path);
 	if (s) {
-		fprintf(f, "  %zu points, %s to %s cm-1, %s (%s), read as absorbance\n",
+		fprintf(f, "  %zu points, %s-%s cm-1, %s, %s as absorbance\n",
 		        irr_spectrum_points(s), fmt(a, sizeof a, lo, 1), fmt(b, sizeof b, hi, 1),
 		        irr_spectrum_source_format(s), irr_yunits_name(irr_spectrum_source_y_units(s)));
 		for (size_t i = 0; i < irr_spectrum_warning_count(s); i++)
