@@ -5,6 +5,7 @@
  * JSON work per molecule. */
 #include "irrecon/tables.h"
 #include "irrecon/sha256.h"
+#include "irrecon/structure.h"
 
 #include <cjson/cJSON.h>
 #include <dirent.h>
@@ -626,8 +627,16 @@ static int parse_group(ctx *c, const cJSON *jg, irr_table_group *g)
 	if ((rc = get_string(c, jg, "group", "smarts", 0, &s)))
 		return rc;
 	if (s) {
+		irr_smarts *pat = NULL;
+		irr_error e2;
 		if (!*s)
 			return fail(c, "empty 'smarts'");
+		/* Compiled once here only to check it, so that a bad pattern is
+		 * reported with its file and line, not later by perception. */
+		irr_error_clear(&e2);
+		if (irr_smarts_compile(&pat, s, &e2) != IRR_OK)
+			return fail(c, "%s", e2.message);
+		irr_smarts_free(pat);
 		if (!(g->smarts = arena_strdup(c->t, s)))
 			goto nomem;
 	}
