@@ -27,6 +27,7 @@
 #include "irrecon/spectrum.h"
 #include "irrecon/spectrum_write.h"
 #include "irrecon/peaks.h"
+#include "irrecon/axischeck.h"
 #include "irrecon/structure.h"
 #include "irrecon/perceive.h"
 #include "irrecon/tables.h"

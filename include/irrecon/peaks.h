@@ -29,15 +29,37 @@ typedef struct irr_peak {
 	                      * standing alone); 0 for shoulders and saturated */
 } irr_peak;
 
+/* Every threshold of the picker. Defaults (irr_peak_options_init), chosen
+ * so that ATR, film, solution and digitised spectra work untuned (checked
+ * on ../shared/ir-reference/ and the synthetic tests):
+ *   smooth_cm 0 (auto: a 7 cm-1 window of at least 7 points, degree 4;
+ *     narrow bands are measured on the unsmoothed trace, so the window
+ *     never widens them); min_snr 5; min_rel_height 0.01;
+ *   intensity classes by height relative to the strongest band (a
+ *     saturated band counts as at least as strong as anything measured):
+ *     strong >= 0.33, medium >= 0.10, weak below (our choice, in line with
+ *     the usual s/m/w reading of a spectrum; common practice);
+ *   broad_cm 60 (condensed-phase C-H, C=O and ring bands are 5-30 cm-1
+ *     wide; hydrogen-bonded O-H and N-H, carboxylic O-H, ammonium 100 and
+ *     more; common practice); shoulders on; baseline on (rubber band).
+ * Noise is the robust sd of the raw trace (irr_peaklist_noise), measured
+ * per block of 96 points so that noisier stretches get their own level. */
 typedef struct irr_peak_options {
 	double smooth_cm;      /* Savitzky-Golay window width in cm-1 (0 = auto) */
-	double min_snr;        /* prominence must exceed min_snr x noise */
-	double min_rel_height; /* ignore peaks below this fraction of the strongest */
+	double min_snr;        /* a maximum's prominence must exceed min_snr x
+	                        * noise (raw sd); a shoulder's second-derivative
+	                        * lobe 1.6 x min_snr x its own noise, and its
+	                        * height 1.6 x min_snr x noise */
+	double min_rel_height; /* ignore maxima whose prominence (shoulders: whose
+	                        * height) is below this fraction of the strongest
+	                        * band's height; saturated bands are never dropped */
 	double strong_frac;    /* rel_height >= strong_frac -> strong */
 	double medium_frac;    /* rel_height >= medium_frac -> medium, else weak */
-	double broad_cm;       /* fwhm >= broad_cm -> broad */
+	double broad_cm;       /* fwhm >= broad_cm -> broad (saturated: the
+	                        * clipped range's width) */
 	int shoulders;         /* look for shoulders (second derivative) */
-	int baseline;          /* remove the baseline first */
+	int baseline;          /* remove the baseline first (0: absorbance 0 is
+	                        * the baseline) */
 } irr_peak_options;
 
 void irr_peak_options_init(irr_peak_options *o);
@@ -63,12 +85,26 @@ void irr_peak_options_init(irr_peak_options *o);
 typedef struct irr_peaklist irr_peaklist;
 
 /* Picks peaks from a normalised spectrum (irr_spectrum_normalise first;
- * a spectrum that is not normalised is an error). Caller owns *out. */
+ * a spectrum that is not normalised is an error). `o` may be NULL for the
+ * defaults. Saturated ranges of the spectrum become saturated peaks
+ * (position the range's centre, low/high the range, height the clipped
+ * level above the baseline as a lower bound, fwhm and area 0 = unknown,
+ * intensity strong); they are never dropped. Shoulders have fwhm and area
+ * 0 (unknown) and low = high = position. Caller owns *out. */
 int irr_peaks_pick(irr_peaklist **out, const irr_spectrum *s,
                    const irr_peak_options *o, irr_error *err);
-/* Reads a peak list: CSV (position[,intensity[,width]], header optional;
- * intensity may be a number or a class name) or JSON (an array of numbers
- * or of objects with "position", "intensity", "width"). Caller owns *out. */
+/* Reads a peak list: CSV/TSV (position[,intensity[,width]], ',' ';' tab
+ * or blanks between fields, '#' comments, header optional; the measured
+ * range from a line "range,LO,HI" or a comment "# range: LO HI") or JSON
+ * (an array of numbers or of objects with "position", "intensity",
+ * "width" or "fwhm", "height"; or an object {"range": [lo, hi], "peaks":
+ * [...]}; irrecon's own irrecon.peaks/1 output reads back).
+ * Intensity: a number is a band height, bigger = stronger (absorbance or
+ * any relative scale; not %T), classed like picked peaks; a class name
+ * (s, m, w, vs, vw, strong, medium, weak, variable) sets the class, with
+ * height 0 and rel_height 1.0 / 0.2 / 0.05 (strong / medium / weak); no
+ * intensity at all leaves IRR_INT_NONE (unknown). Width is the FWHM in
+ * cm-1 (0 = unknown). Errors name the file and line. Caller owns *out. */
 int irr_peaklist_read_file(irr_peaklist **out, const char *path, irr_error *err);
 int irr_peaklist_read_memory(irr_peaklist **out, const char *data, size_t len,
                              const char *name, irr_error *err);
