@@ -27,6 +27,7 @@ typedef struct row {
 	irr_manifest_sample pub;
 	char *text[F_COUNT];       /* owned strings (lists: unused) */
 	irr_strlist lists[3];      /* starting materials, reagents, solvents */
+	irr_error *err;            /* failed rows only */
 } row;
 
 struct irr_manifest {
@@ -57,6 +58,7 @@ static void row_release(row *r)
 {
 	for (int f = 0; f < F_COUNT; f++)
 		free(r->text[f]);
+	free(r->err);
 	for (int k = 0; k < 3; k++) {
 		for (size_t i = 0; i < r->lists[k].n; i++)
 			free(r->lists[k].v[i]);
@@ -161,10 +163,15 @@ static void row_publish(row *r)
 	p->solvents = (const char *const *)r->lists[2].v;
 }
 
+/* Only failed rows carry an error record: it is 2 KB, and a manifest may
+ * have a million rows. */
 static int row_fail(row *r, const char *name, long line, const char *fmt, const char *a)
 {
 	r->pub.failed = 1;
-	irr_error_set(&r->pub.error, IRR_EINPUT, name, line, fmt, a ? a : "");
+	if (!r->err && !(r->err = malloc(sizeof *r->err)))
+		return IRR_ENOMEM;
+	irr_error_set(r->err, IRR_EINPUT, name, line, fmt, a ? a : "");
+	r->pub.error = r->err;
 	return IRR_OK;
 }
 
@@ -360,8 +367,11 @@ static int jsonl_row(irr_manifest *m, row *r, const char *d, size_t n, long line
 	cJSON *root = NULL, *e;
 	irr_error perr;
 	if (irr_request__parse_json(&root, d, n, m->name, line, &perr) != IRR_OK) {
+		if (!(r->err = malloc(sizeof *r->err)))
+			return IRR_ENOMEM;
+		*r->err = perr;
 		r->pub.failed = 1;
-		r->pub.error = perr;
+		r->pub.error = r->err;
 		return IRR_OK;
 	}
 	if (!cJSON_IsObject(root)) {
@@ -601,10 +611,12 @@ int irr_manifest_sample_request(irr_request **out, const irr_manifest *m,
 	*out = NULL;
 	if (!s)
 		return irr_error_set(err, IRR_EINPUT, m->name, 0, "no sample %zu", i);
+	if (s->failed && !s->error)
+		return irr_error_set(err, IRR_ENOMEM, m->name, s->line, "out of memory");
 	if (s->failed) {
 		if (err)
-			*err = s->error;
-		return s->error.code ? s->error.code : IRR_EINPUT;
+			*err = *s->error;
+		return s->error->code ? s->error->code : IRR_EINPUT;
 	}
 	if (!s->structure)
 		return irr_error_set(err, IRR_EINPUT, m->name, s->line, "no structure given for this sample");

@@ -44,7 +44,7 @@ typedef struct irr_manifest_sample {
 	const char *phase;         /* "condensed", "solution", "gas" */
 	const char *sampling;      /* "atr", "transmission" */
 	int failed;                /* the row itself is malformed: see `error` */
-	irr_error error;
+	const irr_error *error;    /* why (failed rows only; else NULL) */
 } irr_manifest_sample;
 
 typedef struct irr_manifest irr_manifest;
