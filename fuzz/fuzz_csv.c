@@ -1,7 +1,9 @@
-/* fuzz_csv.c: libFuzzer target for the CSV/TSV spectrum reader. Each input
- * is read twice, with the default options and with decimal commas and a
- * micrometre X axis, since those take different paths through the parser;
- * what is accepted is normalised too. Seeds: tests/fuzz-seeds/csv/. */
+/* fuzz_csv.c: libFuzzer target for the CSV/TSV spectrum reader, through the
+ * public entry point the program uses (format detection, binary and UTF-16
+ * refusal, limits). Each input is read twice, with the default options and
+ * with decimal commas, percent transmittance and a micrometre X axis, since
+ * those take different paths through the parser; what is accepted is
+ * normalised too. Seeds: tests/fuzz-seeds/csv/. */
 #include <stdint.h>
 #include <stdlib.h>
 
@@ -27,7 +29,7 @@ static void one(const char *s, size_t len, int variant)
 		o.y_units = IRR_Y_PERCENT_T;
 	}
 	irr_error_clear(&err);
-	rc = irr_csv__read(&sp, s, len, "fuzz.csv", &o, &err);
+	rc = irr_spectrum_read_memory(&sp, s, len, "fuzz.csv", &o, &err);
 	fuzz_check_error(rc, &err);
 	if (rc == IRR_OK) {
 		if (!sp || irr_spectrum_points(sp) > o.max_points)
