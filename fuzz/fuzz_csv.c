@@ -9,7 +9,6 @@
 
 #include "fuzz.h"
 #include "irrecon/spectrum.h"
-#include "jcamp.h"
 
 int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size);
 

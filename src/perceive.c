@@ -41,7 +41,7 @@ struct irr_inventory {
 enum {
 	CAU_AZIDE, CAU_ACYL_AZIDE, CAU_DIAZO, CAU_DIAZONIUM, CAU_PEROXIDE,
 	CAU_POLYNITRO, CAU_NITRATE, CAU_ISOCYANATE, CAU_ISONITRILE,
-	CAU_NITROSAMINE, CAU_CYANIDE, CAU_PERCHLORATE, CAU_HYDRAZINE, CAU_N
+	CAU_NITROSAMINE, CAU_CYANIDE, CAU_PERCHLORATE, CAU_HYDRAZINE, CAU_PHOSGENE, CAU_N
 };
 static const char *const caution_text[CAU_N] = {
 	"azide: organic and inorganic azides can decompose explosively and give toxic "
@@ -69,7 +69,9 @@ static const char *const caution_text[CAU_N] = {
 	"perchlorate: strong oxidiser, explosive with organic matter; follow local safety "
 	"rules and the lab's approved procedures",
 	"hydrazine: toxic and a suspected carcinogen; follow local safety rules and the lab's "
-	"approved procedures"};
+	"approved procedures",
+	"phosgene (carbonyl dihalide): very toxic by inhalation; follow local safety rules "
+	"and the lab's approved procedures"};
 
 /* ---------------------------------------------------------------- context */
 
@@ -318,6 +320,8 @@ static void find_carbonyls(ctx *c)
 		int cl = CL_NONE;
 		if (nS || nOther)
 			cl = CL_NONE; /* thioesters, acylsilanes...: no key */
+		else if (nX >= 1)
+			cl = CL_ACID_HALIDE; /* also chloroformates, carbamoyl chlorides, phosgene */
 		else if (nN >= 2)
 			cl = CL_UREA;
 		else if (nN == 1 && nO == 1)
@@ -328,8 +332,6 @@ static void find_carbonyls(ctx *c)
 			cl = CL_ESTER; /* refined below: acid, carboxylate, anhydride */
 		else if (nN == 1 && nC + hC == 1)
 			cl = CL_AMIDE;
-		else if (nX == 1 && nC + hC == 1)
-			cl = CL_ACID_HALIDE;
 		else if (nC + hC == 2)
 			cl = hC ? CL_ALDEHYDE : CL_KETONE;
 		c->cls[i] = cl;
@@ -608,12 +610,16 @@ static void perceive_carbonyls(ctx *c)
 			break;
 		}
 		case CL_ACID_HALIDE: {
-			int hal = -1;
+			x = emit(c, "acid_halide", i, o, -1);
+			int nhal = 0;
 			FOR_NB(c, i, e)
-				if (is_halogen(EL(c, c->na[e])))
-					hal = c->na[e];
-			x = emit(c, "acid_halide", i, o, hal);
-			claim(c, hal);
+				if (is_halogen(EL(c, c->na[e]))) {
+					add_atom(c, x, c->na[e]);
+					claim(c, c->na[e]);
+					nhal++;
+				}
+			if (nhal == 2)
+				c->caution[CAU_PHOSGENE] = 1;
 			if (x)
 				x->attrs.conjugated = carbonyl_conjugated(c, i);
 			break;

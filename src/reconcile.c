@@ -1329,9 +1329,15 @@ int irr_check_run(irr_check *c, irr_error *err)
 				int dup = 0;
 				if (ob->overtone || iclass(ob->intensity) < 2 || ob->weight < 0.3)
 					continue;
-				for (size_t i = 0; i < ne && !dup; i++)
-					if (overlaps(ob->low, ob->high, c->exp[i].band->low, c->exp[i].band->high))
+				/* The product explains it when one of its own bands, not
+				 * an overtone and not two classes weaker, covers it. */
+				for (size_t i = 0; i < ne && !dup; i++) {
+					const irr_band *pb = c->exp[i].band;
+					if (!pb->overtone && pb->weight > 0 &&
+					    c->eclass[i] + 1 >= iclass(ob->intensity) &&
+					    overlaps(ob->low, ob->high, pb->low, pb->high))
 						dup = 1;
+				}
 				/* A library band and a predicted band for one vibration:
 				 * keep the first (the library's, measured). */
 				for (size_t q = 0; q < oi->nmarkers && !dup; q++)
@@ -1351,8 +1357,13 @@ int irr_check_run(irr_check *c, irr_error *err)
 				observable++;
 				for (size_t j = 0; j < np; j++) {
 					const irr_peak *p = c->obs[j].peak;
-					if (!c->obs[j].significant || c->obs[j].status == IRR_PEAK_EXPLAINED ||
-					    !peak_in(p, ob->low, ob->high, 0.5 * margin_of(ob->low, ob->high)))
+					/* Traces count here: any picked peak, not only the
+					 * significant ones. */
+					if (c->obs[j].status == IRR_PEAK_EXPLAINED ||
+					    c->obs[j].attributed_kind == IRR_SOURCE_ATMOSPHERE ||
+					    !(peak_in(p, ob->low, ob->high, margin_of(ob->low, ob->high)) ||
+					      (p->broad && p->high > p->low && ob->typical > p->low &&
+					       ob->typical < p->high)))
 						continue;
 					if (ob->shape == IRR_SHAPE_VERY_BROAD && !p->broad && p->fwhm > 0 &&
 					    p->fwhm < 0.5 * c->opt.peaks.broad_cm)
@@ -1515,6 +1526,35 @@ int irr_check_run(irr_check *c, irr_error *err)
 				    (p->intensity == IRR_INT_STRONG || p->saturated))
 					co = (long)j;
 			}
+			/* Two N-H stretches where a secondary amine or amide shows
+			 * one: a sharp unexplained band beside the explained N-H
+			 * stretch, at least half its height. */
+			for (size_t j = 0; j < np; j++) {
+				const irr_observed *q = &c->obs[j];
+				const irr_band *qb;
+				const irr_group *g;
+				if (q->expected < 0 || c->exp[q->expected].peak != (long)j)
+					continue;
+				qb = c->exp[q->expected].band;
+				g = irr_inventory_group(c->inv, qb->group_index);
+				if (!strstr(qb->label, "N-H stretch") || !g || g->attrs.n_h != 1)
+					continue;
+				for (size_t k = 0; k < np; k++) {
+					const irr_peak *p = c->obs[k].peak;
+					if (c->obs[k].status != IRR_PEAK_UNEXPLAINED || p->broad || p->shoulder ||
+					    p->position < 3250 || p->position > 3550 ||
+					    fabs(p->position - q->peak->position) > 150 ||
+					    p->height < 0.5 * q->peak->height)
+						continue;
+					decisive = 1;
+					if (add_reason(c, "rule", 1, q->expected, (long)k,
+					               "two N-H stretches (%s and %s cm-1) where a secondary %s shows one (common practice)",
+					               fmtw(w1, sizeof w1, q->peak->position),
+					               fmtw(w2, sizeof w2, p->position), g->id))
+						goto nomem;
+					break;
+				}
+			}
 			if (broad_oh >= 0 && co >= 0 && !irr_inventory_find(c->inv, "carboxylic_acid") &&
 			    (c->obs[broad_oh].status == IRR_PEAK_UNEXPLAINED ||
 			     c->obs[co].status == IRR_PEAK_UNEXPLAINED)) {
@@ -1638,15 +1678,30 @@ int irr_check_run(irr_check *c, irr_error *err)
 			goto nomem;
 	}
 
-	/* Score: found weight against found + missing + half the unexplained
-	 * weight; an inconsistent verdict never scores above 0.49. */
+	/* Score: the found share of the expected weight, reduced by half the
+	 * share of the observed band weight that nothing explains; an
+	 * inconsistent verdict never scores above 0.49. */
 	{
-		double den = found_w + missing_w + 0.5 * unexpl_w;
-		c->score = den > 0 ? found_w / den : 0.0;
+		double sig_w = 0, den = found_w + missing_w, u;
+		for (size_t j = 0; j < np; j++)
+			if (c->obs[j].significant &&
+			    !(c->obs[j].status == IRR_PEAK_ATTRIBUTED &&
+			      c->obs[j].attributed_kind >= IRR_SOURCE_ATMOSPHERE))
+				sig_w += c->obs[j].weight;
+		u = sig_w > 0 ? unexpl_w / sig_w : 0.0;
+		c->score = den > 0 ? found_w / den * (1.0 - 0.5 * u) : 0.0;
 		if (c->verdict == IRR_VERDICT_INCONSISTENT && c->score > 0.49)
 			c->score = 0.49;
 		c->score = floor(c->score * 1000.0 + 0.5) / 1000.0;
 	}
+
+	/* Decisive reasons first, each group in the order found. */
+	for (size_t a = 1; a < c->nreasons; a++)
+		for (size_t b = a; b > 0 && c->reasons[b].decisive && !c->reasons[b - 1].decisive; b--) {
+			irr_reason t = c->reasons[b];
+			c->reasons[b] = c->reasons[b - 1];
+			c->reasons[b - 1] = t;
+		}
 
 	/* Cautions. */
 	if (add_caution(c, CAUTION_EVIDENCE))

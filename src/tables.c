@@ -52,7 +52,7 @@ static const char *const known_keys[] = {
 	"isopropyl", "long_chain",
 	"ether", "epoxide", "peroxide",
 	"thiol", "sulfide", "disulfide", "sulfoxide", "sulfone", "sulfonamide",
-	"sulfonate_ester", "sulfonic_acid", "sulfonyl_chloride", "thiocarbonyl",
+	"sulfonate_ester", "sulfonic_acid", "sulfonate", "sulfonyl_chloride", "thiocarbonyl",
 	"phosphine", "phosphine_oxide", "phosphate", "phosphonate", "p_h",
 	"si_h", "si_methyl", "siloxane", "boronic_acid", "boronic_ester",
 	"c_f", "c_cl", "c_br", "c_i", "water", NULL
@@ -67,7 +67,7 @@ static const char *const rule_attrs[] = {
 static const char *const patterns[] = {
 	"mono", "ortho", "meta", "para", "1,2,3", "1,2,4", "1,3,5", "penta_hexa",
 	"other", "vinyl", "vinylidene", "cis", "trans", "trisubstituted",
-	"tetrasubstituted", "unknown", "", NULL
+	"tetrasubstituted", "unknown", "unsubstituted", "", NULL
 };
 
 /* --- arena: every string and array of a table set lives here ----------- */

@@ -52,7 +52,8 @@
  * Counts (irr_counts) follow the SMILES as written (no salt inference).
  * Cautions: azide, acyl/sulfonyl azide, diazo, diazonium, peroxide, two or
  * more nitro groups, nitrate ester, isocyanate, isonitrile, N-nitroso,
- * cyanide (HCN, CN-), perchlorate, hydrazine. */
+ * cyanide (HCN, CN-), perchlorate, hydrazine, phosgene. acid_halide also
+ * covers chloroformates, carbamoyl chlorides and phosgene. */
 #ifndef IRRECON_PERCEIVE_H
 #define IRRECON_PERCEIVE_H
 

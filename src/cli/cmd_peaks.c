@@ -170,6 +170,8 @@ static char *render_table(const irr_spectrum *s, const irr_peaklist *pl, const c
 	}
 	irr_peaklist_range(pl, &lo, &hi);
 	fprintf(f, "%s\n", path);
+	if (s && irr_spectrum_title(s)[0])
+		fprintf(f, "  title: %.70s\n", irr_spectrum_title(s));
 	if (s) {
 		fprintf(f, "  %zu points, %s-%s cm-1, %s, %s as absorbance\n",
 		        irr_spectrum_points(s), fmt(a, sizeof a, lo, 1), fmt(b, sizeof b, hi, 1),

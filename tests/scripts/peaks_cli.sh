@@ -104,6 +104,18 @@ PY
 "$P" peaks --peak-list tests/data/peaks/polystyrene-classes.csv >"$tmp/list.txt" || fail "peak list table"
 grep -q '1601.0' "$tmp/list.txt" || fail "peak list table lacks 1601"
 
+# A compound (LINK) file made of two shared blocks: the blocks are listed,
+# the first infrared one is the default, --block picks another.
+{ printf '##TITLE=compound\r\n##JCAMP-DX=5.01\r\n##DATA TYPE=LINK\r\n##BLOCKS=2\r\n'
+  cat "$REF/chloroform.jdx" "$REF/polystyrene-film.jdx"; printf '##END=\r\n'; } >"$tmp/link.jdx"
+"$P" peaks --list-blocks "$tmp/link.jdx" >"$tmp/blocks.txt" || fail "--list-blocks"
+grep -q '3 blocks' "$tmp/blocks.txt" && grep -q 'LINK' "$tmp/blocks.txt" || fail "block list: $(cat "$tmp/blocks.txt")"
+"$P" peaks --json "$tmp/link.jdx" | $PY -c 'import json,sys; assert json.load(sys.stdin)["spectrum"]["points"] == 7701' \
+	|| fail "default block is not the first infrared one (chloroform, 7701 points)"
+"$P" peaks --json --block 3 "$tmp/link.jdx" | $PY -c 'import json,sys; assert json.load(sys.stdin)["spectrum"]["points"] == 1844' \
+	|| fail "--block 3 is not the polystyrene film (1844 points)"
+"$P" peaks --block 9 "$tmp/link.jdx" 2>/dev/null; [ $? -eq 2 ] || fail "--block 9 of 3"
+
 # Bad input: exit 2, one line naming the file (and line), output untouched.
 printf 'wavenumber,absorbance\n1000,0.1\n1001,nan\n1002,0.2\n' >"$tmp/nan.csv"
 printf '##TITLE=cut\n##JCAMP-DX=4.24\n##XUNITS=1/CM\n##YUNITS=ABSORBANCE\n' >"$tmp/cut.jdx"

@@ -163,6 +163,9 @@ static void carbonyl_families(void **state)
 	       W("anhydride", 1, 5, ANY, ANY, ANY, NULL, 1));
 	EXPECT("benzoyl chloride", "O=C(Cl)c1ccccc1", NULL,
 	       W("acid_halide", 1, ANY, ANY, ANY, ANY, NULL, 1), W("c_cl", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("ethyl chloroformate", "ClC(=O)OCC", NULL,
+	       W("acid_halide", ANY, ANY, ANY, ANY, ANY, NULL, 1), W("c_cl", ANY, ANY, ANY, ANY, ANY, NULL, 0),
+	       W("ether", ANY, ANY, ANY, ANY, ANY, NULL, 0));
 	EXPECT("ethylene carbonate", "O=C1OCCO1", NULL, W("carbonate", ANY, 5, ANY, ANY, ANY, NULL, 1));
 	EXPECT("dimethyl carbonate", "COC(=O)OC", NULL, W("carbonate", ANY, 0, ANY, ANY, ANY, NULL, 1));
 	/* Acids and their salts. */
@@ -410,6 +413,7 @@ static void cautions(void **state)
 		{"N-nitrosodimethylamine", "CN(C)N=O", "N-nitroso"},
 		{"potassium cyanide", "[C-]#N.[K+]", "cyanide"},
 		{"hydrazine", "NN", "hydrazine"},
+		{"phosgene", "ClC(Cl)=O", "phosgene"},
 	};
 	for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
 		irr_inventory *inv = perceive(cases[i].smiles, NULL);

@@ -83,7 +83,7 @@ static void builtin_tables_cover_every_key(void **state)
 		"methyl", "methylene", "methine", "gem_dimethyl", "tert_butyl", "isopropyl",
 		"long_chain", "ether", "epoxide", "peroxide", "thiol", "sulfide", "disulfide",
 		"sulfoxide", "sulfone", "sulfonamide", "sulfonate_ester", "sulfonic_acid",
-		"sulfonyl_chloride", "thiocarbonyl", "phosphine", "phosphine_oxide",
+		"sulfonate", "sulfonyl_chloride", "thiocarbonyl", "phosphine", "phosphine_oxide",
 		"phosphate", "phosphonate", "p_h", "si_h", "si_methyl", "siloxane",
 		"boronic_acid", "boronic_ester", "c_f", "c_cl", "c_br", "c_i", "water"
 	};
