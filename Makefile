@@ -109,9 +109,15 @@ $(BUILD)/irrecon.pc: irrecon.pc.in FORCE
 	sed -e 's|@PREFIX@|$(PREFIX)|g' -e 's|@VERSION@|$(VERSION)|g' $< > $@
 FORCE:
 
+# The man page, made from the program's own --help texts so that it cannot
+# drift from the options; doc/irrecon.1 is the committed copy for reading.
+$(BUILD)/irrecon.1: $(BUILD)/irrecon tools/mkman
+	@if command -v python3 >/dev/null; then python3 tools/mkman $(BUILD)/irrecon > $@.tmp && mv $@.tmp $@; \
+	 else cp doc/irrecon.1 $@; fi
+
 # Program, libraries (shared with soname libirrecon.so.0, and static),
 # headers, group tables, man page and pkg-config file under $(DESTDIR)$(PREFIX).
-install: all $(BUILD)/irrecon.pc
+install: all $(BUILD)/irrecon.pc $(BUILD)/irrecon.1
 	install -d $(DESTDIR)$(BINDIR) $(DESTDIR)$(LIBDIR)/pkgconfig $(DESTDIR)$(INCDIR)/irrecon \
 	           $(DESTDIR)$(DATADIR)/group-tables $(DESTDIR)$(MANDIR)/man1
 	install -m 755 $(BUILD)/irrecon $(DESTDIR)$(BINDIR)/irrecon
@@ -122,7 +128,7 @@ install: all $(BUILD)/irrecon.pc
 	install -m 644 include/irrecon.h $(DESTDIR)$(INCDIR)/irrecon.h
 	install -m 644 include/irrecon/*.h $(DESTDIR)$(INCDIR)/irrecon/
 	cd group-tables && find . -name '*.json' -exec install -D -m 644 {} $(DESTDIR)$(DATADIR)/group-tables/{} \;
-	install -m 644 doc/irrecon.1 $(DESTDIR)$(MANDIR)/man1/irrecon.1
+	install -m 644 $(BUILD)/irrecon.1 $(DESTDIR)$(MANDIR)/man1/irrecon.1
 	install -m 644 $(BUILD)/irrecon.pc $(DESTDIR)$(LIBDIR)/pkgconfig/irrecon.pc
 
 # Speed and memory figures against their targets; never part of `make test`.

@@ -46,6 +46,10 @@ cc -std=c11 -Wall -Wextra -pedantic -Werror examples/embed/check_sample.c \
    $(pkg-config --cflags --libs irrecon) -Wl,-rpath,"$p/lib" -o "$tmp/check_sample" || fail "example does not build"
 ldd "$tmp/check_sample" | grep -q "$p/lib/libirrecon.so.0" || fail "example not linked to the installed library"
 
+# The man page documents every command the program lists.
+for c in $("$p/bin/irrecon" --help | awk '/^Commands:/ {on = 1; next} on && /^  [a-z]/ {print $1}'); do
+  grep -q "^\.SS \"irrecon $c\"" "$p/share/man/man1/irrecon.1" || fail "man page lacks the command $c"
+done
 # The man page is well-formed roff.
 if command -v groff >/dev/null; then
   groff -man -Tutf8 -ww -z "$p/share/man/man1/irrecon.1" 2>"$tmp/groff.log" || fail "man page"
