@@ -248,7 +248,7 @@ static void print_text(FILE *out, const irr_molecule *m, const char *title,
 			        bd->shape == IRR_SHAPE_VERY_BROAD ? "v.broad" : irr_shape_name(bd->shape),
 			        bd->weight);
 		}
-		fit(out, label, 49);
+		fit(out, label, 47);
 		fprintf(out, "\n");
 	}
 	if (nb == 0)

@@ -54,6 +54,9 @@ done
 # Text: 80 columns, every region for a structure that spans them.
 "$P" predict 'OC(=O)c1ccc(N=[N+]=[N-])cc1' >"$tmp/t.txt" || fail "text predict"
 awk 'length($0) > 80 { print "line " NR " is " length($0) " columns"; bad=1 } END { exit bad }' "$tmp/t.txt" || fail "text wider than 80 columns"
+# long band labels (1,2-disubstituted alkene, stereo not given) and a long SMILES
+"$P" predict 'CC=CC(C)(C)OC(=O)c1ccc(NS(=O)(=O)c2ccc(cc2)[N+](=O)[O-])cc1CCCCCCCCCC' >"$tmp/t2.txt" || fail "text predict 2"
+awk 'length($0) > 80 { print "line " NR " is " length($0) " columns"; bad=1 } END { exit bad }' "$tmp/t2.txt" || fail "text 2 wider than 80 columns"
 for r in 'above 3000' '3000-2500' '2500-2000' '2000-1500' 'fingerprint'; do
   grep -q -- "-- .*$r" "$tmp/t.txt" || fail "region '$r' missing"
 done
