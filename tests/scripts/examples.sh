@@ -55,4 +55,59 @@ sys.exit(1 if bad else 0)
   fi
 done < examples/cases.tsv
 [ "$n" -ge 6 ] || { echo "FAIL: only $n cases read from examples/cases.tsv"; exit 1; }
+
+# The commands of README.md's "Worked example", as printed there (output
+# files sent to a temporary folder): check gives the verdict the text
+# states, synth writes its file.
+T=$(mktemp -d)
+trap 'rm -rf "$T"' EXIT
+/usr/bin/python3 - "$T" > "$T/readme-commands" <<'PY'
+import re, sys
+text = open("README.md", encoding="utf-8").read()
+sec = text.split("## Worked example", 1)[1].split("\n## ", 1)[0]
+cmds, cur = [], None
+for line in sec.split("\n"):
+    if line.startswith("    build/irrecon ") and cur is None:
+        cur = line.strip()
+    elif cur is not None and line.startswith("    "):
+        cur += " " + line.strip()
+    else:
+        if cur is not None:
+            cmds.append(cur)
+        cur = None
+if cur is not None:
+    cmds.append(cur)
+for c in cmds:
+    c = c.replace("\\ ", "")
+    c = re.sub(r"(--svg|-o) (\S+)", lambda m: "%s %s/%s" % (m.group(1), sys.argv[1], m.group(2)), c)
+    print(c)
+PY
+nreadme=0
+while IFS= read -r cmd; do
+  nreadme=$((nreadme + 1))
+  out=$(eval "$cmd" 2>&1); rc=$?
+  case "$cmd" in
+    *" check "*)
+      if [ "$rc" != 1 ] || ! printf '%s' "$out" | head -n 1 | grep -q '== CONSISTENT IMPURE =='; then
+        echo "FAIL README check command: exit $rc, $(printf '%s' "$out" | head -n 1)"; fails=$((fails + 1))
+      else echo "ok README: $cmd"; fi
+      svg=$(printf '%s' "$cmd" | sed -n 's/.*--svg \([^ ]*\).*/\1/p')
+      [ -z "$svg" ] || [ -s "$svg" ] || { echo "FAIL README check command wrote no SVG"; fails=$((fails + 1)); } ;;
+    *" synth "*)
+      f=$(printf '%s' "$cmd" | sed -n 's/.* -o \([^ ]*\).*/\1/p')
+      if [ "$rc" != 0 ] || [ ! -s "$f" ]; then
+        echo "FAIL README synth command: exit $rc $out"; fails=$((fails + 1))
+      else echo "ok README: $cmd"; fi ;;
+  esac
+done < "$T/readme-commands"
+[ "$nreadme" -ge 2 ] || { echo "FAIL: README.md worked example commands not found ($nreadme)"; fails=$((fails + 1)); }
+
+# make demo's script: builds nothing, shows the report and where the plot is.
+out=$(BUILD="$BUILD" tools/demo 2>&1); rc=$?
+if [ "$rc" != 0 ] || ! printf '%s' "$out" | grep -q '== CONSISTENT IMPURE ==' ||
+   ! printf '%s' "$out" | grep -q "SVG plot written to .*/demo/LPC-2231-04.svg"; then
+  echo "FAIL tools/demo: exit $rc"; printf '%s\n' "$out" | tail -n 5; fails=$((fails + 1))
+else
+  echo "ok tools/demo"
+fi
 [ "$fails" -eq 0 ]
