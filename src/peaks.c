@@ -654,6 +654,20 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		sigma = noise_of(w.y, n, w.scratch);
 		if (sigma < 1e-5 * range)
 			sigma = 1e-5 * range;
+		/* Quantised data without visible noise (a flat run of one stored
+		 * integer): the rounding error, sd q/sqrt(12) for a step q
+		 * (uniform quantisation noise; B. Widrow, IRE Trans. Circuit
+		 * Theory 3 (1956) 266), is the least noise there is. */
+		{
+			double q = HUGE_VAL;
+			for (size_t i = 0; i + 1 < n; i++) {
+				double d = fabs(w.y[i + 1] - w.y[i]);
+				if (d > 0.0 && d < q)
+					q = d;
+			}
+			if (q < HUGE_VAL && sigma < q / sqrt(12.0))
+				sigma = q / sqrt(12.0);
+		}
 		if (sigma <= 0.0)
 			sigma = 1e-12;
 		for (size_t b = 0; b < nb; b++) {
@@ -705,7 +719,11 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		double hmax = 0.0;
 		double guard = (2 * half + 2) * dx;
 		memset(w.keep, 0, n);
-		for (size_t i = 1; i + 1 < n; i++) {
+		/* Not within a half window of either end: there the end
+		 * polynomial extrapolates, and a band cut off by the end of the
+		 * measured range cannot be measured anyway. */
+		size_t edge = half > 1 ? (size_t)half : 1;
+		for (size_t i = edge; i + edge < n; i++) {
 			if (!(w.c[i] > w.c[i - 1] && w.c[i] >= w.c[i + 1]))
 				continue;
 			double base = w.lb[i] > w.rb[i] ? w.lb[i] : w.rb[i];
@@ -810,13 +828,20 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 					p.high = p.position + 0.5 * fw;
 				}
 				p.fwhm = p.high - p.low;
+				/* Degenerate shapes (a step, a ramp) can give no sensible
+				 * width: then it is unknown. */
+				if (!(p.fwhm > 0.0) || !isfinite(p.fwhm)) {
+					p.fwhm = 0.0;
+					p.low = p.high = p.position;
+				}
 				if (p.fwhm >= 2.0 * (2 * half) * dx)
 					break;
 			}
 			/* Broad bands (>= 12 points wide): the vertex of a parabola
 			 * fitted over the top +-0.3 FWHM, re-centred once. */
 			{
-				size_t m = (size_t)floor(0.3 * p.fwhm / dx);
+				double mf = floor(0.3 * p.fwhm / dx);
+				size_t m = mf >= 4.0 && mf < (double)n ? (size_t)mf : 0;
 				if (m >= 4 && !p.shoulder) {
 					double v = vertex_fit(w.c, i, m, lv, rv);
 					if (!isnan(v)) {
