@@ -1327,7 +1327,10 @@ int irr_check_run(irr_check *c, irr_error *err)
 				const other_band *ob = &oi->bands[b];
 				irr_marker *mk;
 				int dup = 0;
-				if (ob->overtone || iclass(ob->intensity) < 2 || ob->weight < 0.3)
+				/* Bands it must show: strong ones, or medium ones the
+				 * tables count as diagnostic. */
+				if (ob->overtone || iclass(ob->intensity) < 2 ||
+				    (iclass(ob->intensity) < 3 && ob->weight < 0.3))
 					continue;
 				/* The product explains it when one of its own bands, not
 				 * an overtone and not two classes weaker, covers it. */
@@ -1678,9 +1681,8 @@ int irr_check_run(irr_check *c, irr_error *err)
 			goto nomem;
 	}
 
-	/* Score: the found share of the expected weight, reduced by half the
-	 * share of the observed band weight that nothing explains; an
-	 * inconsistent verdict never scores above 0.49. */
+	/* Score: agreement is the found share of the expected weight, reduced
+	 * by half the share of the observed band weight that nothing explains. */
 	{
 		double sig_w = 0, den = found_w + missing_w, u;
 		for (size_t j = 0; j < np; j++)
@@ -1689,9 +1691,16 @@ int irr_check_run(irr_check *c, irr_error *err)
 			      c->obs[j].attributed_kind >= IRR_SOURCE_ATMOSPHERE))
 				sig_w += c->obs[j].weight;
 		u = sig_w > 0 ? unexpl_w / sig_w : 0.0;
-		c->score = den > 0 ? found_w / den * (1.0 - 0.5 * u) : 0.0;
-		if (c->verdict == IRR_VERDICT_INCONSISTENT && c->score > 0.49)
-			c->score = 0.49;
+		double a = den > 0 ? found_w / den * (1.0 - 0.5 * u) : 0.0;
+		/* The verdict sets the band: consistent (also impure) 0.5-1,
+		 * inconclusive 0-0.5, inconsistent 0-0.49; agreement places the
+		 * score inside it, so that ranking by score keeps verdicts apart. */
+		if (c->verdict == IRR_VERDICT_CONSISTENT || c->verdict == IRR_VERDICT_CONSISTENT_IMPURE)
+			c->score = 0.5 + 0.5 * a;
+		else if (c->verdict == IRR_VERDICT_INCONCLUSIVE)
+			c->score = 0.5 * a;
+		else
+			c->score = 0.49 * a;
 		c->score = floor(c->score * 1000.0 + 0.5) / 1000.0;
 	}
 
