@@ -86,6 +86,7 @@ typedef struct shared_input {
 
 typedef struct shared_lib {
 	int refs;
+	int borrowed;            /* the caller's library: never freed here */
 	irr_solvent_library *lib;
 } shared_lib;
 
@@ -181,7 +182,8 @@ static void input_release(shared_input *in)
 static void lib_release(shared_lib *sl)
 {
 	if (sl && --sl->refs == 0) {
-		irr_solvents_free(sl->lib);
+		if (!sl->borrowed)
+			irr_solvents_free(sl->lib);
 		free(sl);
 	}
 }
@@ -313,6 +315,24 @@ static int ensure_lib(irr_check *c, irr_error *err)
 		c->sl = NULL;
 	}
 	return rc;
+}
+
+int irr_check_use_solvents(irr_check *c, const irr_solvent_library *lib, irr_error *err)
+{
+	shared_lib *sl;
+	if (!c || !lib)
+		return irr_error_set(err, IRR_EINPUT, "", 0, "no solvent library given");
+	if (c->nothers)
+		return irr_error_set(err, IRR_EINPUT, "", 0,
+		                     "set the solvent library before adding substances");
+	if (!(sl = calloc(1, sizeof *sl)))
+		return irr_error_set(err, IRR_ENOMEM, "", 0, "out of memory");
+	sl->refs = 1;
+	sl->borrowed = 1;
+	sl->lib = (irr_solvent_library *)lib;
+	lib_release(c->sl);
+	c->sl = sl;
+	return IRR_OK;
 }
 
 int irr_check_set_structure_named(irr_check *c, const char *smiles,

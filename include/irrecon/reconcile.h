@@ -125,6 +125,13 @@ int irr_check_set_structure_named(irr_check *c, const char *smiles,
 int irr_check_add_other(irr_check *c, irr_other_kind kind, const char *what,
                         irr_error *err);
 
+/* Uses an already loaded solvent library (borrowed: keep it alive while
+ * the check and its clones live) instead of loading one per check; for
+ * batches. Call before irr_check_add_other. */
+struct irr_solvent_library;
+int irr_check_use_solvents(irr_check *c, const struct irr_solvent_library *lib,
+                           irr_error *err);
+
 /* Takes ownership of `s` (also on failure): normalises it and picks peaks
  * with the options' peak settings. */
 int irr_check_set_spectrum(irr_check *c, irr_spectrum *s, irr_error *err);
