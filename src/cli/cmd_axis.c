@@ -3,6 +3,7 @@
  * the European / Japanese Pharmacopoeia) and says whether it can be
  * trusted. Exit 0 when every resolved band is within tolerance, 1 when one
  * is not (or none is resolved), 2 on error. */
+#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -25,6 +26,8 @@ static const opt_def opts[] = {
 	{"--output", "FILE", "write to FILE (replaced atomically) instead of stdout"},
 	{"--block", "N", "compound JCAMP-DX file: use block N"},
 	{"--decimal-comma", NULL, "CSV: ',' is the decimal separator"},
+	{"--max-bytes", "N", "refuse files larger than N bytes (default 256 MiB)"},
+	{"--max-points", "N", "refuse spectra of more than N points (default 4,000,000)"},
 	{"--y-units", "UNITS", "CSV without a units header: absorbance, transmittance, ..."},
 	{"--search", "CM", "look for each band within +-CM cm-1 (default 6)"},
 	{"--min-snr", "X", "a band must stand X noise units above its surroundings (default 5)"},
@@ -212,7 +215,14 @@ int cmd_axis(int argc, char **argv)
 			char *end;
 			if (irr_parse_double(v, &end, &num) != IRR_OK || *end)
 				return cli_usage_error("axis", "%s needs a number, not '%s'", a, v);
-			if (!strcmp(a, "--block")) {
+			if (!strcmp(a, "--max-bytes") || !strcmp(a, "--max-points")) {
+				if (!(num >= 1 && num <= 1e15) || num != floor(num))
+					return cli_usage_error("axis", "%s needs a whole number >= 1, not '%s'", a, v);
+				if (!strcmp(a, "--max-bytes"))
+					ro.max_bytes = (size_t)num;
+				else
+					ro.max_points = (size_t)num;
+			} else if (!strcmp(a, "--block")) {
 				if (num < 1 || num > 1e6 || num != (double)(int)num)
 					return cli_usage_error("axis", "--block needs a whole number >= 1, not '%s'", v);
 				ro.block = (int)num;

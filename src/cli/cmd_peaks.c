@@ -1,6 +1,7 @@
 /* cmd_peaks.c: `irrecon peaks FILE`: reads a spectrum (or a peak list),
  * picks the bands and prints them as an 80-column table or as JSON
  * ("irrecon.peaks/1"). */
+#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -26,6 +27,8 @@ static const opt_def opts[] = {
 	{"--list-blocks", NULL, "list the blocks of a JCAMP-DX file and stop"},
 	{"--peak-list", NULL, "FILE is a peak list (CSV or JSON), not a spectrum"},
 	{"--decimal-comma", NULL, "CSV: ',' is the decimal separator"},
+	{"--max-bytes", "N", "refuse files larger than N bytes (default 256 MiB)"},
+	{"--max-points", "N", "refuse spectra of more than N points (default 4,000,000)"},
 	{"--y-units", "UNITS", "CSV without a units header: absorbance, transmittance,\n"
 	                       "                       percent_transmittance, reflectance, kubelka_munk"},
 	{"--micrometres", NULL, "CSV: X is wavelength in micrometres"},
@@ -300,7 +303,14 @@ int cmd_peaks(int argc, char **argv)
 		} else {
 			if (parse_num(a, v, &num))
 				return CLI_ERROR;
-			if (!strcmp(a, "--smooth"))
+			if (!strcmp(a, "--max-bytes") || !strcmp(a, "--max-points")) {
+				if (!(num >= 1 && num <= 1e15) || num != floor(num))
+					return cli_usage_error("peaks", "%s needs a whole number >= 1, not '%s'", a, v);
+				if (!strcmp(a, "--max-bytes"))
+					ro.max_bytes = (size_t)num;
+				else
+					ro.max_points = (size_t)num;
+			} else if (!strcmp(a, "--smooth"))
 				po.smooth_cm = num;
 			else if (!strcmp(a, "--min-snr"))
 				po.min_snr = num;
