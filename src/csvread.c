@@ -215,8 +215,10 @@ static char pick_delimiter(const line_ref *l, int decimal_comma)
 	return 0;
 }
 
-int irr_csv__read(irr_spectrum **out, const char *data, size_t len,
-                  const char *name, const irr_read_options *o, irr_error *err)
+/* The reader; with `prefix` set, `data` is only the first part of the
+ * input: its lines are checked and nothing is built. */
+static int csv_read(irr_spectrum **out, const char *data, size_t len, const char *name,
+                    const irr_read_options *o, irr_error *err, int prefix)
 {
 	size_t pos = 0, cap, n = 0, max_points = irr_spectrum__max_points(o);
 	long no = 0, last_no = 0;
@@ -323,6 +325,10 @@ int irr_csv__read(irr_spectrum **out, const char *data, size_t len,
 		lines[n] = l.no;
 		n++;
 	}
+	if (prefix) {
+		rc = IRR_OK;
+		goto done;
+	}
 	if (n == 0) {
 		rc = irr_error_set(err, IRR_EINPUT, name, last_no ? last_no : 1,
 		                   "no data points: %s", len == 0 ? "the file is empty"
@@ -363,4 +369,17 @@ done:
 	free(lines);
 	irr_spectrum_free(s);
 	return rc;
+}
+
+int irr_csv__read(irr_spectrum **out, const char *data, size_t len,
+                  const char *name, const irr_read_options *o, irr_error *err)
+{
+	return csv_read(out, data, len, name, o, err, 0);
+}
+
+int irr_csv__check_prefix(const char *data, size_t len, const char *name,
+                          const irr_read_options *o, irr_error *err)
+{
+	irr_spectrum *s = NULL;
+	return csv_read(&s, data, len, name, o, err, 1);
 }

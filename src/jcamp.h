@@ -59,9 +59,16 @@ int irr_jcamp__list_blocks(irr_block_info **out, size_t *count, const char *data
 int irr_csv__read(irr_spectrum **out, const char *data, size_t len,
                   const char *name, const irr_read_options *o, irr_error *err);
 
+/* Checks the complete lines of the first part of a CSV input, so that a
+ * huge file that is not a spectrum fails before it is read in full. */
+int irr_csv__check_prefix(const char *data, size_t len, const char *name,
+                          const irr_read_options *o, irr_error *err);
+
 /* Reads a whole file into a NUL-terminated malloc'd buffer (caller frees),
- * refusing files larger than max_bytes before reading them. */
+ * refusing files larger than max_bytes before reading them, and binary
+ * data from the first 64 KiB. When `o` is not NULL and the file is longer
+ * than that, a text prefix that is not JCAMP-DX is checked as CSV first. */
 int irr_spectrum__slurp(char **out, size_t *len, const char *path,
-                        size_t max_bytes, irr_error *err);
+                        size_t max_bytes, const irr_read_options *o, irr_error *err);
 
 #endif

@@ -258,14 +258,18 @@ static int binary_error(const char *data, size_t len, size_t nul_at, const char 
 	                     "binary data (a NUL byte), not a JCAMP-DX or CSV text file");
 }
 
+#define SNIFF_BYTES ((size_t)65536)
+
+static int looks_like_jcamp(const char *data, size_t len);
+
 int irr_spectrum__slurp(char **out, size_t *len, const char *path,
-                        size_t max_bytes, irr_error *err)
+                        size_t max_bytes, const irr_read_options *o, irr_error *err)
 {
 	int fd;
 	struct stat st;
 	char *buf = NULL;
 	size_t cap = 0, n = 0;
-	int rc = IRR_OK;
+	int rc = IRR_OK, sniffed = 0;
 	*out = NULL;
 	*len = 0;
 	fd = open(path, O_RDONLY | O_CLOEXEC);
@@ -286,10 +290,23 @@ int irr_spectrum__slurp(char **out, size_t *len, const char *path,
 		}
 		cap = (size_t)st.st_size + 1;
 	} else {
-		cap = 65536;
+		cap = SNIFF_BYTES + 1;
 	}
 	for (;;) {
 		ssize_t r;
+		size_t want;
+		if (buf && n + 1 >= cap && S_ISREG(st.st_mode) && sniffed) {
+			/* The whole file is in; one probe tells whether it grew
+			 * meanwhile, without doubling a large buffer for nothing. */
+			char probe;
+			ssize_t pr = read(fd, &probe, 1);
+			if (pr == 0)
+				break;
+			if (pr < 0 && errno == EINTR)
+				continue;
+			rc = irr_error_set(err, IRR_EIO, path, 0, "the file changed while it was read");
+			goto done;
+		}
 		if (n + 1 >= cap || !buf) {
 			size_t ncap = buf ? 2 * cap : cap;
 			char *nb;
@@ -307,25 +324,37 @@ int irr_spectrum__slurp(char **out, size_t *len, const char *path,
 			buf = nb;
 			cap = ncap;
 		}
-		r = read(fd, buf + n, cap - 1 - n);
+		/* The first 64 KiB are read on their own and looked at before
+		 * the rest: binary data, or a text that fails as CSV in its first
+		 * lines, is refused without reading (or paging in) a huge file. */
+		want = cap - 1 - n;
+		if (!sniffed && n < SNIFF_BYTES && want > SNIFF_BYTES - n)
+			want = SNIFF_BYTES - n;
+		r = read(fd, buf + n, want);
 		if (r < 0) {
 			if (errno == EINTR)
 				continue;
 			rc = irr_error_set(err, IRR_EIO, path, 0, "read error: %s", strerror(errno));
 			goto done;
 		}
-		if (r == 0)
-			break;
-		/* Binary data is refused from its first chunk, before a large
-		 * file is read in full. */
-		if (n == 0) {
-			const char *z = memchr(buf, '\0', (size_t)r);
-			if (z || looks_like_utf16((const unsigned char *)buf, (size_t)r)) {
-				rc = binary_error(buf, (size_t)r, z ? (size_t)(z - buf) : 0, path, err);
+		n += (size_t)r;
+		if (!sniffed && (n >= SNIFF_BYTES || r == 0)) {
+			const char *z = memchr(buf, '\0', n);
+			sniffed = 1;
+			if (z || looks_like_utf16((const unsigned char *)buf, n)) {
+				rc = binary_error(buf, n, z ? (size_t)(z - buf) : 0, path, err);
 				goto done;
 			}
+			if (o && r != 0 && !looks_like_jcamp(buf, n)) {
+				const char *nl = buf + n;
+				while (nl > buf && nl[-1] != '\n')
+					nl--;
+				if (nl > buf && (rc = irr_csv__check_prefix(buf, (size_t)(nl - buf), path, o, err)) < 0)
+					goto done;
+			}
 		}
-		n += (size_t)r;
+		if (r == 0)
+			break;
 		if (n > max_bytes) {
 			rc = irr_error_set(err, IRR_ELIMIT, path, 0,
 			                   "input is more than the limit of %zu bytes", max_bytes);
@@ -412,7 +441,7 @@ int irr_spectrum_read_file(irr_spectrum **out, const char *path,
 		irr_read_options_init(&def);
 		o = &def;
 	}
-	if ((rc = irr_spectrum__slurp(&buf, &len, path, irr_spectrum__max_bytes(o), err)) < 0)
+	if ((rc = irr_spectrum__slurp(&buf, &len, path, irr_spectrum__max_bytes(o), o, err)) < 0)
 		return rc;
 	if (len && ((z = memchr(buf, '\0', len)) || looks_like_utf16((const unsigned char *)buf, len)))
 		rc = binary_error(buf, len, z ? (size_t)(z - buf) : 0, path, err);
@@ -434,7 +463,7 @@ int irr_jcamp_list_blocks(irr_block_info **out, size_t *count, const char *path,
 		return irr_error_set(err, IRR_EINPUT, path, 0, "no output pointer");
 	*out = NULL;
 	*count = 0;
-	if ((rc = irr_spectrum__slurp(&buf, &len, path, IRR_SPECTRUM__DEFAULT_MAX_BYTES, err)) < 0)
+	if ((rc = irr_spectrum__slurp(&buf, &len, path, IRR_SPECTRUM__DEFAULT_MAX_BYTES, NULL, err)) < 0)
 		return rc;
 	if (!looks_like_jcamp(buf, len))
 		rc = irr_error_set(err, IRR_EINPUT, path, 1,
