@@ -438,8 +438,7 @@ static int parse_rule_if(ctx *c, const cJSON *cond, const char *where, irr_table
 			return fail(c, "%s: unknown sampling '%s' (atr, transmission)", where, bare);
 	} else {
 		char *end;
-		long n = strtol(bare, &end, 10);
-		(void)n;
+		(void)strtol(bare, &end, 10);
 		if (!*bare || *end)
 			return fail(c, "%s: value of '%s' must be a whole number", where, r->attr);
 	}
