@@ -76,6 +76,14 @@ assert any(g["id"] == "larkspur_tbs_ether" for g in d["groups"]), [g["id"] for g
 assert any(b["group"] == "larkspur_tbs_ether" for b in d["bands"])
 PY
 
+# The example table in group-tables/README.md is a working table: alone
+# (--tables ""), it gives cyclopentanone its strained C=O (1745, Silverstein
+# 7th ed.; from memory).
+awk '/^```json$/ {on=1; next} /^```$/ {on=0} on' group-tables/README.md >"$tmp/readme.json"
+"$P" predict --json --tables "" --add-table "$tmp/readme.json" 'O=C1CCCC1' >"$tmp/r.json" || fail "README example table"
+$PY -c 'import json,sys; d=json.load(open(sys.argv[1])); b=[x for x in d["bands"] if x["label"]=="C=O stretch"]; assert len(b)==1 and b[0]["low"]<=1745<=b[0]["high"], b' "$tmp/r.json" ||
+  fail "README example table prediction"
+
 # IRRECON_TABLES: a folder holding only the nitrogen table.
 mkdir "$tmp/tables" && cp group-tables/nitrogen.json "$tmp/tables/"
 IRRECON_TABLES="$tmp/tables" "$P" predict --json 'CC#N' >"$tmp/e.json" || fail "IRRECON_TABLES"
