@@ -223,6 +223,7 @@ static void broken_tables_name_file_line_and_field(void **state)
 		{"bad-rule.json", IRR_EINPUT, 4, "unknown attribute 'colour'"},
 		{"bad-weight.json", IRR_EINPUT, 4, "weight 1.5 must lie in 0..1"},
 		{"no-source.json", IRR_EINPUT, 4, "no 'source'"},
+		{"bad-smarts.json", IRR_EINPUT, 4, "group 'larkspur_ester': bad SMARTS"},
 		{"empty.json", IRR_EINPUT, 0, "empty table file"},
 		{"wrong-format.json", IRR_EINPUT, 2, "format 'somebody-else/2'"},
 		{"not-object.json", IRR_EINPUT, 1, "must be a JSON object"},
