@@ -808,8 +808,17 @@ int irr_spectrum_normalise(irr_spectrum *s, irr_error *err)
 		free(y);
 		return irr_error_set(err, IRR_ENOMEM, s->name, 0, "out of memory");
 	}
-	memcpy(x, s->x, s->n * sizeof *x);
-	memcpy(y, s->y, s->n * sizeof *y);
+	/* Copied in ascending order straight away (IR files usually run from
+	 * high to low wavenumber); micrometres are reversed after conversion. */
+	if (!s->x_micrometers && s->x[0] > s->x[s->n - 1]) {
+		for (size_t i = 0, j = s->n - 1; i < s->n; i++, j--) {
+			x[i] = s->x[j];
+			y[i] = s->y[j];
+		}
+	} else {
+		memcpy(x, s->x, s->n * sizeof *x);
+		memcpy(y, s->y, s->n * sizeof *y);
+	}
 	nwarn = s->nwarn;
 	s->nsat = 0;
 	if ((rc = normalise_arrays(s, x, y, err)) < 0) {
