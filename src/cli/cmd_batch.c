@@ -11,6 +11,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/resource.h>
 #include <sys/stat.h>
 #include <sys/types.h>
 #include <sys/wait.h>
@@ -299,6 +300,30 @@ static void print_summary(const tally *t, double secs, int jobs)
 	}
 }
 
+/* Peak resident memory of this process in KiB: VmHWM, which counts only
+ * this program (getrusage's ru_maxrss also counts what the parent had
+ * before exec), else ru_maxrss; 0 when neither is known. */
+static long peak_memory_kib(void)
+{
+	FILE *f = fopen("/proc/self/status", "r");
+	char line[256];
+	long kib = 0;
+	if (f) {
+		while (fgets(line, sizeof line, f))
+			if (!strncmp(line, "VmHWM:", 6)) {
+				kib = strtol(line + 6, NULL, 10);
+				break;
+			}
+		fclose(f);
+	}
+	if (!kib) {
+		struct rusage ru;
+		if (getrusage(RUSAGE_SELF, &ru) == 0)
+			kib = ru.ru_maxrss;
+	}
+	return kib;
+}
+
 static void print_timing(const irr_batch_timing *tm)
 {
 	double n = tm->samples ? (double)tm->samples : 1;
@@ -306,6 +331,7 @@ static void print_timing(const irr_batch_timing *tm)
 	                "  read %.4f  peaks %.4f  perceive %.4f  predict %.4f  reconcile %.4f  write %.4f  total %.4f\n",
 	        tm->samples, 1e3 * tm->read / n, 1e3 * tm->peaks / n, 1e3 * tm->perceive / n,
 	        1e3 * tm->predict / n, 1e3 * tm->reconcile / n, 1e3 * tm->write / n, 1e3 * tm->total / n);
+	fprintf(stderr, "  peak memory of the parent process %.1f MB\n", (double)peak_memory_kib() / 1024.0);
 }
 
 /* ---- Running samples ------------------------------------------------------------ */
