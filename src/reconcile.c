@@ -1314,12 +1314,6 @@ int irr_check_run(irr_check *c, irr_error *err)
 		}
 	}
 
-	/* 7. Candidates for what is still unexplained. */
-	for (size_t j = 0; j < np; j++)
-		if (c->obs[j].status == IRR_PEAK_UNEXPLAINED && c->obs[j].significant)
-			c->obs[j].ncandidates = find_candidates(c->t, c->obs[j].peak,
-			                                        c->cands + j * MAX_CANDIDATES);
-
 	/* 8. Marker bands of the other substances. */
 	{
 		double heights[256];
@@ -1417,13 +1411,31 @@ int irr_check_run(irr_check *c, irr_error *err)
 			r->presence = found ? IRR_PRESENCE_LIKELY_PRESENT
 			            : observable ? IRR_PRESENCE_ABSENT : IRR_PRESENCE_CANNOT_TELL;
 		}
-		for (size_t j = 0; j < np; j++)
-			if (c->obs[j].status == IRR_PEAK_ATTRIBUTED &&
-			    c->obs[j].attributed_kind <= IRR_SOURCE_SOLVENT)
-				for (size_t k = 0; k < c->nothers; k++)
-					if (c->obs[j].attributed_smiles == c->others[k].smiles)
+		/* A substance whose markers are there to see and missing does not
+		 * take the blame for other bands either. */
+		for (size_t j = 0; j < np; j++) {
+			irr_observed *o = &c->obs[j];
+			if (o->status != IRR_PEAK_ATTRIBUTED || o->attributed_kind > IRR_SOURCE_SOLVENT)
+				continue;
+			for (size_t k = 0; k < c->nothers; k++)
+				if (o->attributed_smiles == c->others[k].smiles) {
+					if (c->ores[k].presence == IRR_PRESENCE_ABSENT) {
+						o->status = IRR_PEAK_UNEXPLAINED;
+						o->attributed_kind = IRR_SOURCE_NONE;
+						o->attributed_name = o->attributed_smiles = o->attributed_label = NULL;
+					} else {
 						c->ores[k].nattributed++;
+					}
+					break;
+				}
+		}
 	}
+
+	/* 7. Candidates for what is still unexplained. */
+	for (size_t j = 0; j < np; j++)
+		if (c->obs[j].status == IRR_PEAK_UNEXPLAINED && c->obs[j].significant)
+			c->obs[j].ncandidates = find_candidates(c->t, c->obs[j].peak,
+			                                        c->cands + j * MAX_CANDIDATES);
 
 	/* 9. Verdict, score and reasons, most important first. */
 	{

@@ -73,7 +73,7 @@ static void help(void)
 
 /* ---- Shared with rank ---- */
 
-int cli_read_structure_file(char **out, const char *path, irr_error *err)
+int cli_read_structure_file(char **out, long *line_no, const char *path, irr_error *err)
 {
 	FILE *f = fopen(path, "rb");
 	char line[65536];
@@ -106,6 +106,8 @@ int cli_read_structure_file(char **out, const char *path, irr_error *err)
 		fclose(f);
 		if (!(*out = strdup(p)))
 			return irr_error_set(err, IRR_ENOMEM, path, 0, "out of memory");
+		if (line_no)
+			*line_no = ln;
 		return IRR_OK;
 	}
 	fclose(f);
@@ -310,6 +312,7 @@ int cmd_check(int argc, char **argv)
 	int json = 0, list = 0, status = CLI_ERROR;
 	char **extra = NULL, *smiles_buf = NULL, *solv_file = NULL, *report = NULL, *plot = NULL;
 	size_t nextra = 0;
+	long structure_line = 0;
 	struct { irr_other_kind kind; const char *what; } *others = NULL;
 	size_t nothers = 0;
 	irr_check_options o;
@@ -392,7 +395,7 @@ int cmd_check(int argc, char **argv)
 		goto out;
 	}
 	if (structure_file) {
-		if (cli_read_structure_file(&smiles_buf, structure_file, &err))
+		if (cli_read_structure_file(&smiles_buf, &structure_line, structure_file, &err))
 			goto fail;
 		structure = smiles_buf;
 	}
@@ -402,8 +405,11 @@ int cmd_check(int argc, char **argv)
 	o.sample_id = sample;
 	o.solvents_file = solv_file;
 	irr_check_set_options(c, &o);
-	if (irr_check_set_structure_named(c, structure, structure_file ? structure_file : "--structure", &err))
+	if (irr_check_set_structure_named(c, structure, structure_file ? structure_file : "--structure", &err)) {
+		if (structure_file && err.line <= 0)
+			err.line = structure_line;
 		goto fail;
+	}
 	for (size_t k = 0; k < nothers; k++)
 		if (irr_check_add_other(c, others[k].kind, others[k].what, &err))
 			goto fail;

@@ -6,8 +6,9 @@
 #include "irrecon/reconcile.h"
 
 /* First SMILES in a file: the first token of the first line that is not
- * blank and not a '#' comment. Caller frees *out. */
-int cli_read_structure_file(char **out, const char *path, irr_error *err);
+ * blank and not a '#' comment; *line_no (may be NULL) gets its line.
+ * Caller frees *out. */
+int cli_read_structure_file(char **out, long *line_no, const char *path, irr_error *err);
 
 /* Loads tables from `dir` (NULL: default) plus extra files. When `dir` has
  * solvents/solvents.json, *solvents_file is set to it (caller frees). */
