@@ -2,7 +2,8 @@
 # batch_errors.sh: a bad row of a manifest gives one irrecon.error/1 record
 # naming the file and line, and the batch goes on; path tricks are refused
 # (docs: README, "Many samples"); --out is written atomically: a failed or
-# interrupted run leaves an existing output as it was and no temporary file.
+# interrupted run leaves an existing output as it was and no temporary file;
+# a worker process that dies costs only the samples it still owed.
 # The expected messages and lines are read off tests/data/batch/plate.csv.
 set -u
 cd "$(dirname "$0")/../.."
@@ -72,6 +73,31 @@ timeout -s TERM 0.4 "$P" batch --quiet --jobs 2 --out fresh.jsonl long.csv
 ls ./*.tmp.* 2>/dev/null && fail "2 jobs: temporary file left behind"
 "$P" batch --quiet --out kept.jsonl plate.csv
 [ "$(wc -l <kept.jsonl)" -eq 12 ] || fail "a finished run did not replace the output"
+
+# A worker process that dies (here: killed) costs only its own samples: they
+# become error records in their places, the batch finishes in order, exit 2.
+if command -v pgrep >/dev/null; then
+  "$P" batch --quiet --jobs 2 --out crash.jsonl long.csv 2>crash.err &
+  bp=$!
+  w=
+  for _ in $(seq 50); do
+    sleep 0.05
+    w=$(pgrep -P "$bp" | head -n 1)
+    [ -n "$w" ] && break
+  done
+  [ -n "$w" ] || fail "no worker process seen"
+  sleep 0.2
+  kill -KILL "$w"
+  wait "$bp"
+  rc=$?
+  [ $rc -eq 2 ] || fail "killed worker: exit status $rc"
+  [ "$(wc -l <crash.jsonl)" -eq 3000 ] || fail "killed worker: not one line per sample"
+  grep -q '"the worker process checking this sample was ended by signal 9"' crash.jsonl || fail "killed worker: no record naming the signal"
+  /usr/bin/python3 -c '
+import json, sys
+got = [json.loads(l)["sample"] for l in open(sys.argv[1])]
+sys.exit(0 if got == ["LPC-0913-%d" % i for i in range(1, 3001)] else 1)' crash.jsonl || fail "killed worker: order lost"
+fi
 
 # Unknown options and missing values are usage errors.
 "$P" batch --jobs 0 plate.csv 2>/dev/null; [ $? -eq 2 ] || fail "--jobs 0 accepted"
