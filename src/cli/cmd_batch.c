@@ -92,7 +92,6 @@ static const opt_def *find_opt(const char *a)
 /* ---- Output: stdout, or a temporary file renamed at the end ---------------- */
 
 static char *tmp_path;           /* the temporary output while it exists */
-static volatile sig_atomic_t got_signal;
 
 static void on_signal(int sig)
 {
@@ -786,7 +785,7 @@ int cmd_batch(int argc, char **argv)
 	start = tl.start = now_s();
 
 	if (jobs == 1) {
-		for (size_t q = 0; q < nsel && !got_signal; q++) {
+		for (size_t q = 0; q < nsel; q++) {
 			char *line = NULL, msg[2200] = "";
 			int v = run_one(&j, sel[q], &line, msg, sizeof msg);
 			if (!line) {

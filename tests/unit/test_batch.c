@@ -5,8 +5,9 @@
  *   or LF. The expected fields and line numbers are worked by hand from the
  *   texts below.
  * - JSON Lines (jsonlines.org: one UTF-8 JSON value per line) and RFC 8259.
- * - Path confinement as docs/batch.md states it: absolute paths, '..' and
- *   symbolic links leaving the manifest's folder are refused unless allowed.
+ * - Path confinement as README.md ("Many samples") states it: absolute
+ *   paths, '..' and symbolic links leaving the manifest's folder are refused
+ *   unless allowed.
  * - The real spectrum ../shared/ir-reference/acetophenone.jdx (or
  *   $IRRECON_REFDIR): the digest in a batch result's provenance must be the
  *   one published in that folder's SHA256SUMS. */
