@@ -134,6 +134,37 @@ print(html.unescape(m.group(1)) if m else "")' "$T/$c.dom")
 	case "$summary" in *"SCRIPTS 0") ;; *) bad "$c: a <script> element got into the SVG" ;; esac
 	case "$summary" in "TEXTS "[0-9]" "*) bad "$c: too few texts: $summary" ;; esac
 done
+# Readable in grey print: the four window statuses differ in pattern
+# geometry and outline dash, the three peak statuses in marker shape, not
+# only in colour (checked on the legend of the first plot).
+if [ -f "$T/oxidation.svg" ]; then
+	/usr/bin/python3 - "$T/oxidation.svg" <<'PY' || bad "statuses are told apart by colour only"
+import sys, xml.etree.ElementTree as ET
+ns = {"s": "http://www.w3.org/2000/svg"}
+root = ET.parse(sys.argv[1]).getroot()
+pats = {p.get("id"): p for p in root.iter("{http://www.w3.org/2000/svg}pattern")}
+names = ["irr-pat-found", "irr-pat-saturated", "irr-pat-missing", "irr-pat-unobservable"]
+def shape(p):
+    # Geometry only: element kinds, path data, transform; colours ignored.
+    return (p.get("patternTransform"), tuple((c.tag, c.get("d"), c.get("r")) for c in p))
+geo = [shape(pats[n]) for n in names if n in pats]
+dashes = set()
+for r in root.iter("{http://www.w3.org/2000/svg}rect"):
+    f = r.get("fill", "")
+    if f.startswith("url(#irr-pat-") and r.get("stroke"):  # outlined: lanes, legend
+        dashes.add((f, r.get("stroke-dasharray")))
+by_status = {}
+for f, d in dashes:
+    by_status.setdefault(f, set()).add(d)
+ok = len(geo) == 4 and len(set(geo)) == 4
+ok = ok and len({next(iter(v)) for v in by_status.values()}) == len(by_status) >= 4
+texts = [t.text for t in root.iter("{http://www.w3.org/2000/svg}text")]
+for w in ["found", "saturated", "missing", "unobservable", "explained", "attributed", "unexplained"]:
+    ok = ok and w in texts
+print("pattern geometries %d distinct, outline dashes %s" % (len(set(geo)), sorted(str(v) for v in by_status.values())))
+sys.exit(0 if ok else 1)
+PY
+fi
 # The hostile sample id is there as text.
 if [ -f "$T/hostile.svg" ]; then
 	grep -q '&lt;script&gt;alert(1)&lt;/script&gt; &amp;' "$T/hostile.svg" || bad "hostile: sample id not escaped as expected"
