@@ -1477,8 +1477,8 @@ int irr_check_run(irr_check *c, irr_error *err)
 			const irr_band *b = c->exp[order[a]].band;
 			decisive = 1;
 			if (add_reason(c, "missing_band", 1, (long)order[a], -1,
-			               "no band for the %s %s (expected %s, %s-%s cm-1)",
-			               b->group_name, b->label, irr_intensity_name(b->intensity),
+			               "no band for the %s of the %s (expected %s, %s-%s cm-1)",
+			               b->label, b->group_name, irr_intensity_name(b->intensity),
 			               fmtw(w1, sizeof w1, b->low), fmtw(w2, sizeof w2, b->high)))
 				goto nomem;
 		}
@@ -1642,8 +1642,8 @@ int irr_check_run(irr_check *c, irr_error *err)
 			if (e->status == IRR_BAND_UNOBSERVABLE && !b->overtone && b->weight >= DECISIVE_WEIGHT &&
 			    iclass(b->intensity) >= 2)
 				if (add_reason(c, "unobservable", 0, (long)i, -1,
-				               "the %s %s (%s-%s cm-1) could not be observed: %s",
-				               b->group_name, b->label, fmtw(w1, sizeof w1, b->low),
+				               "the %s of the %s (%s-%s cm-1) could not be observed: %s",
+				               b->label, b->group_name, fmtw(w1, sizeof w1, b->low),
 				               fmtw(w2, sizeof w2, b->high), e->note))
 					goto nomem;
 		}

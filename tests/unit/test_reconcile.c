@@ -548,6 +548,50 @@ static void mid_triple_bond_band_prefers_nitrile(void **state)
 	irr_check_free(c);
 }
 
+/* --phase changes the windows: an alcohol's O-H is hydrogen-bonded and
+ * broad near 3200-3550 cm-1 in the condensed phase, free and sharp near
+ * 3600-3650 cm-1 in the gas phase (Silverstein, Webster & Kiemle 7th ed.,
+ * ch. 2; from memory). */
+static void phase_moves_the_oh_window(void **state)
+{
+	static const char pl[] = "position,intensity\n2970,strong\n2880,medium\n1465,medium\n"
+	                         "1380,medium\n1130,strong\n950,strong\n";
+	irr_check *c = NULL;
+	irr_check_options o;
+	irr_error err;
+	double cond_hi = 0, gas_lo = 1e9;
+	(void)state;
+	for (int gas = 0; gas < 2; gas++) {
+		assert_int_equal(irr_check_create(&c, tables, &err), IRR_OK);
+		irr_check_options_init(&o);
+		o.phase = gas ? IRR_PHASE_GAS : IRR_PHASE_CONDENSED;
+		o.sampling = IRR_SAMPLING_TRANSMISSION;
+		irr_check_set_options(c, &o);
+		assert_int_equal(irr_check_set_structure(c, "CC(C)O", &err), IRR_OK);
+		assert_int_equal(irr_check_set_peaks(c, peaks_from(pl), &err), IRR_OK);
+		assert_int_equal(irr_check_run(c, &err), IRR_OK);
+		for (size_t i = 0; i < irr_check_expected_count(c); i++) {
+			const irr_expected *e = irr_check_expected(c, i);
+			const irr_band *b = e->band;
+			if (!strstr(b->label, "O-H stretch"))
+				continue;
+			/* no O-H band in the list: missing either way */
+			assert_int_equal(e->status, IRR_BAND_MISSING);
+			if (gas && b->low < gas_lo)
+				gas_lo = b->low;
+			if (!gas && b->high > cond_hi)
+				cond_hi = b->high;
+		}
+		/* The H-bonded O-H is diagnostic; the table weighs the free one
+		 * less, so only the condensed phase decides here. */
+		if (!gas)
+			assert_int_equal(irr_check_verdict(c), IRR_VERDICT_INCONSISTENT);
+		irr_check_free(c);
+	}
+	assert_true(cond_hi > 0 && cond_hi <= 3560);
+	assert_true(gas_lo >= 3580 && gas_lo < 1e9);
+}
+
 /* ---- Plumbing ---- */
 
 static void json_is_deterministic_and_complete(void **state)
@@ -637,6 +681,7 @@ int main(void)
 		cmocka_unit_test(broad_oh_with_carbonyl_is_acid),
 		cmocka_unit_test(aromatic_ring_and_ch_above_3000),
 		cmocka_unit_test(mid_triple_bond_band_prefers_nitrile),
+		cmocka_unit_test(phase_moves_the_oh_window),
 		cmocka_unit_test(json_is_deterministic_and_complete),
 		cmocka_unit_test(solvent_library),
 		cmocka_unit_test(bad_inputs_fail_cleanly),
