@@ -1415,6 +1415,23 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 				goto done;
 		}
 	}
+	/* ##MAXX / ##MINX against the (monotonic) axis. */
+	{
+		double a = s->x[0], z = s->x[s->n - 1];
+		double mn = a < z ? a : z, mx = a < z ? z : a;
+		const hval *hv[2] = {&h.maxx, &h.minx};
+		const double got[2] = {mx, mn};
+		for (int k = 0; k < 2; k++) {
+			if (!hv[k]->have)
+				continue;
+			double tol = fabs(xf) + 0.5 * printed_unit(hv[k]->text) + 1e-9 * fabs(hv[k]->v);
+			if (fabs(got[k] - hv[k]->v) > tol &&
+			    (rc = warn(name, err, irr_spectrum__warn(s,
+			             "##%s=%s disagrees with the %s X of the data, %.10g",
+			             k ? "MINX" : "MAXX", hv[k]->text, k ? "smallest" : "largest", got[k]))) < 0)
+				goto done;
+		}
+	}
 	/* Checked after the data, whose count says more about a truncation. */
 	if (b->end_rec < 0) {
 		rc = irr_error_set(err, IRR_EINPUT, name, sc.rec[b->title_rec].line,

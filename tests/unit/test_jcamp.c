@@ -547,6 +547,54 @@ static void dup_after_ycheck_repeats_the_value(void **state)
 	irr_spectrum_free(s);
 }
 
+/* Each header record that disagrees with the data gives a warning naming
+ * it; the data are still read. Values here are written to disagree. */
+static void header_checks_warn_naming_the_label(void **state)
+{
+	static const char head[] =
+	    "##TITLE= checks\n##DATA TYPE= INFRARED SPECTRUM\n##XUNITS= 1/CM\n##YUNITS= ABSORBANCE\n"
+	    "##XFACTOR= 1\n##YFACTOR= 0.01\n##FIRSTX= 4000\n##LASTX= 3993\n##NPOINTS= 8\n";
+	static const struct {
+		const char *extra, *label;
+	} cases[] = {
+		{"##DELTAX= -2\n", "##DELTAX"},     /* (3993 - 4000) / 7 = -1 */
+		{"##FIRSTY= 0.20\n", "##FIRSTY"},  /* first Y is 0.10 */
+		{"##MAXY= 0.9\n", "##MAXY"},       /* largest is 0.80 */
+		{"##MINY= 0.2\n", "##MINY"},       /* smallest is 0.10 */
+		{"##MAXX= 4100\n", "##MAXX"},
+		{"##MINX= 3000\n", "##MINX"},
+	};
+	char text[1024];
+	irr_error err;
+	(void)state;
+	for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
+		irr_spectrum *s = NULL;
+		snprintf(text, sizeof text, "%s%s##XYDATA= (X++(Y..Y))\n4000 10 20 30 40\n3996 50 60 70 80\n##END=\n",
+		         head, cases[i].extra);
+		assert_int_equal(irr_spectrum_read_memory(&s, text, strlen(text), "h", NULL, &err), IRR_OK);
+		if (!has_warning(s, cases[i].label))
+			fail_msg("no warning naming %s", cases[i].label);
+		irr_spectrum_free(s);
+	}
+	/* The same headers, consistent: no warning at all. */
+	{
+		irr_spectrum *s = NULL;
+		snprintf(text, sizeof text, "%s##DELTAX= -1\n##FIRSTY= 0.1\n##MAXY= 0.8\n##MINY= 0.1\n"
+		                            "##MAXX= 4000\n##MINX= 3993\n##XYDATA= (X++(Y..Y))\n"
+		                            "4000 10 20 30 40\n3996 50 60 70 80\n##END=\n", head);
+		assert_int_equal(irr_spectrum_read_memory(&s, text, strlen(text), "h", NULL, &err), IRR_OK);
+		assert_int_equal(irr_spectrum_warning_count(s), 0);
+		irr_spectrum_free(s);
+	}
+	/* A real case: 4-chloroaniline.jdx declares ##DELTAX= -2.000002 while
+	 * its X runs from ##FIRSTX= 400 up to ##LASTX= 4000 (step +2). */
+	if (have_refdir()) {
+		irr_spectrum *s = read_ref("4-chloroaniline.jdx");
+		assert_true(has_warning(s, "##DELTAX"));
+		irr_spectrum_free(s);
+	}
+}
+
 /* ---- other records and compound files ------------------------------------ */
 
 static void xypoints_and_peak_table(void **state)
@@ -777,6 +825,7 @@ int main(void)
 		cmocka_unit_test(asdf_round_trips),
 		cmocka_unit_test(e_is_sqz_digit_or_exponent),
 		cmocka_unit_test(dup_after_ycheck_repeats_the_value),
+		cmocka_unit_test(header_checks_warn_naming_the_label),
 		cmocka_unit_test(xypoints_and_peak_table),
 		cmocka_unit_test(link_file_blocks),
 		cmocka_unit_test(bad_input_fails_with_file_and_line),

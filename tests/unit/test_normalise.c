@@ -130,6 +130,35 @@ static void transmittance_to_absorbance(void **state)
 	irr_spectrum_free(s);
 }
 
+static void reflectance_kubelka_munk_arbitrary(void **state)
+{
+	const double x[4] = {1000, 2000, 3000, 4000};
+	const double r[4] = {100, 50, 10, 80};
+	const double km[4] = {0.1, 0.5, 2.0, 0.2};
+	irr_spectrum *s;
+	(void)state;
+	/* log10(1/R): 50 %R -> 0.30103, 10 %R -> 1 (definition of the
+	 * reflectance analogue of absorbance; from memory). */
+	s = make(x, r, 4, IRR_Y_REFLECTANCE);
+	normalise_ok(s);
+	assert_true(fabs(irr_spectrum_y(s)[1] - 0.30102999566398120) < 1e-12);
+	assert_true(fabs(irr_spectrum_y(s)[2] - 1.0) < 1e-12);
+	assert_true(has_warning(s, "percent"));
+	assert_true(has_warning(s, "log10(1/R)"));
+	irr_spectrum_free(s);
+	/* Kubelka-Munk values grow with concentration like absorbance: kept. */
+	s = make(x, km, 4, IRR_Y_KUBELKA_MUNK);
+	normalise_ok(s);
+	assert_memory_equal(irr_spectrum_y(s), km, sizeof km);
+	assert_true(has_warning(s, "Kubelka-Munk"));
+	irr_spectrum_free(s);
+	/* Arbitrary units: detected like unknown ones, with a warning. */
+	s = make(x, km, 4, IRR_Y_ARBITRARY);
+	normalise_ok(s);
+	assert_true(has_warning(s, "arbitrary"));
+	irr_spectrum_free(s);
+}
+
 static void axis_becomes_ascending_cm1(void **state)
 {
 	const double xd[5] = {4000, 3000, 2000, 1500, 1000};
@@ -419,6 +448,7 @@ int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(transmittance_to_absorbance),
+		cmocka_unit_test(reflectance_kubelka_munk_arbitrary),
 		cmocka_unit_test(axis_becomes_ascending_cm1),
 		cmocka_unit_test(units_detected_when_unknown),
 		cmocka_unit_test(saturated_regions),
