@@ -627,10 +627,14 @@ static void draw_axes(sbuf *b, const layout *L, const plot *p)
 {
 	double step, v;
 	char buf[32];
-	/* X ticks: every 500 cm-1 labelled, every 100 a short tick. */
-	for (v = ceil(p->xlo / 100.0) * 100.0; v <= p->xhi + 1e-9; v += 100.0) {
+	/* X ticks: labelled every 500 cm-1 on a full spectrum, closer on a
+	 * narrow range; five short ticks per labelled step. */
+	double span = p->xhi - p->xlo;
+	double major_step = span > 2000.0 ? 500.0 : span > 800.0 ? 200.0 : span > 300.0 ? 100.0 : 50.0;
+	double minor_step = major_step / 5.0;
+	for (v = ceil(p->xlo / minor_step) * minor_step; v <= p->xhi + 1e-9; v += minor_step) {
 		double x = px_x(L, p, v);
-		int major = fmod(v, 500.0) == 0.0;
+		int major = fabs(fmod(v, major_step)) < 1e-6;
 		sb_printf(b, "<line x1=\"%s\" y1=\"%s\" x2=\"%s\" y2=\"%s\" stroke=\"%s\" stroke-width=\"1\"/>\n",
 		          num(x), num(L->bottom), num(x), num(L->bottom + (major ? 6.0 : 3.0)), INK);
 		if (major) {
@@ -692,7 +696,7 @@ static void draw_windows(sbuf *b, const layout *L, const plot *p)
 		const pwin *w = &p->win[i];
 		double lo = fmax(w->low, p->xlo), hi = fmin(w->high, p->xhi);
 		double x0, x1, y = L->lanes_top + w->lane * L->lane_h;
-		if (hi < lo)
+		if (hi < lo || w->lane < 0)
 			continue; /* wholly outside the shown range */
 		x0 = px_x(L, p, hi);
 		x1 = px_x(L, p, lo);
@@ -979,6 +983,10 @@ static int pack_lanes(const layout *L, plot *p)
 		pwin *w = &p->win[order[k]];
 		double x0 = px_x(L, p, fmin(w->high, p->xhi)), x1 = px_x(L, p, fmax(w->low, p->xlo));
 		int lane = -1;
+		if (w->high < p->xlo || w->low > p->xhi) {
+			w->lane = -1; /* outside the shown range: no bar */
+			continue;
+		}
 		if (x1 - x0 < 3.0)
 			x1 = x0 + 3.0;
 		for (int l = 0; l < used; l++)
