@@ -62,6 +62,10 @@ mk hostile --structure 'CCCCCCCCCCCCCCCCC(=O)OCC(COC(=O)CCCCCCC)OC(=O)c1ccc(cc1)
 	--sample '<script>alert(1)</script> & "LPC" '\''x'\'' — µ-batch with a very long name that goes on and on and on'
 printf 'position,intensity\n3062,weak\n2925,medium\n1686,strong\n1599,medium\n1450,medium\n1360,strong\n1266,strong\n761,strong\n691,strong\n' > "$T/peaks.csv"
 mk peaklist --structure 'CC(=O)c1ccccc1' --peaks "$T/peaks.csv" --sample peak-list
+# A narrow range (only the double-bond region measured), written by synth.
+"$IRRECON" synth --structure 'CC(=O)c1ccccc1' --range 1550:1850 --spacing 0.5 -o "$T/narrow.jdx" \
+	|| bad "synth for the narrow case"
+mk narrow --structure 'CC(=O)c1ccccc1' --spectrum "$T/narrow.jdx" --sample narrow-range
 if [ -f "$REF/acetophenone.jdx" ]; then
 	mk measured --structure 'CC(=O)c1ccccc1' --spectrum "$REF/acetophenone.jdx" --sample acetophenone
 else
