@@ -208,6 +208,16 @@ int extract(irr_obshim_mol *m, size_t max_heavy, irr_obshim_graph *g, char *why,
 		if (a->GetAtomicNum() != 1)
 			m->heavy_of[i] = static_cast<int>(nheavy++);
 	}
+	/* A hydrogen takes one bond; "[2H]" written inside a ring or chain
+	 * ("c1c[2H]ccc1") is a valence error, not a molecule. */
+	for (size_t i = 1; i <= nall; i++) {
+		OBAtom *a = mol.GetAtom(static_cast<int>(i));
+		if (a->GetAtomicNum() == 1 && a->GetExplicitDegree() > 1) {
+			copy_text(why, why_size, "hydrogen atom " + std::to_string(i) + " has " +
+			          std::to_string(a->GetExplicitDegree()) + " bonds (a hydrogen takes one)");
+			return IRR_EINPUT;
+		}
+	}
 	if (nheavy > max_heavy) {
 		copy_text(why, why_size, "molecule has " + std::to_string(nheavy) +
 		          " heavy atoms, more than the limit of " + std::to_string(max_heavy));
@@ -294,7 +304,8 @@ int extract(irr_obshim_mol *m, size_t max_heavy, irr_obshim_graph *g, char *why,
 	for (size_t r = 0; r < sssr.size(); r++) {
 		g->ring_start[r] = pos;
 		for (int idx : sssr[r]->_path)
-			g->ring_atoms[pos++] = m->heavy_of[static_cast<size_t>(idx)];
+			if (idx > 0 && static_cast<size_t>(idx) <= nall && m->heavy_of[idx] >= 0)
+				g->ring_atoms[pos++] = m->heavy_of[static_cast<size_t>(idx)];
 	}
 	g->ring_start[g->nrings] = pos;
 

@@ -214,6 +214,9 @@ static void bad_smiles_are_input_errors(void **state)
 		{"CC O", "blank"},
 		{"c1cccc1", "kekulize"},      /* Open Babel only warns about this one */
 		{"c1ccccc1c", "kekulize"},
+		/* A hydrogen in a ring or chain (found by fuzzing): valence error. */
+		{"c1c[2H]cc2[nH]ccc2c1", "hydrogen atom 3 has 2 bonds"},
+		{"C[H]C", "has 2 bonds"},
 	};
 	for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
 		irr_error err;
