@@ -32,8 +32,13 @@ static void one(const char *s, size_t len, irr_manifest_format fmt)
 			irr_request *r = NULL;
 			if (!row || row->index != i)
 				abort();
-			if (row->failed)
-				fuzz_check_error(row->error.code, &row->error);
+			if (row->failed) {
+				if (!row->error)
+					abort();
+				fuzz_check_error(row->error->code, row->error);
+			} else if (row->error) {
+				abort(); /* batch.h: NULL unless the row failed */
+			}
 			for (size_t k = 0; k < row->n_starting_materials; k++)
 				if (!row->starting_materials[k])
 					abort();
