@@ -36,6 +36,14 @@ chrome() { # extra chromium arguments...
 	return $rc
 }
 
+# Preflight: a browser that cannot render a trivial SVG here (no display
+# stack, sandbox refused) is an environment problem, not a plot defect.
+printf '<svg xmlns="http://www.w3.org/2000/svg" width="40" height="30"><rect width="40" height="30" fill="#000"/></svg>\n' > "$T/pre.svg"
+if ! chrome --screenshot="$T/pre.png" --window-size=40,30 "file://$T/pre.svg" >/dev/null || [ ! -s "$T/pre.png" ]; then
+	echo "skipped: headless chromium cannot render in this environment"
+	exit 77
+fi
+
 cases=()
 mk() { # name, check arguments... (exit 0 or 1 both fine: any verdict plots)
 	local name=$1; shift
