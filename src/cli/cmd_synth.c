@@ -8,7 +8,9 @@
 #include <errno.h>
 
 #include "cli/cli.h"
+#include "irrecon/perceive.h"
 #include "irrecon/spectrum_write.h"
+#include "irrecon/structure.h"
 #include "irrecon/synth.h"
 #include "irrecon/tables.h"
 
@@ -128,6 +130,36 @@ static int ends_with(const char *s, const char *suffix)
 {
 	size_t a = strlen(s), b = strlen(suffix);
 	return a >= b && !strcasecmp(s + a - b, suffix);
+}
+
+/* The safety cautions of the structures (azide, diazo, peroxide, ...), on
+ * stderr: a predicted spectrum is no verdict, but the compound is no less
+ * hazardous for it. Each text once. */
+static void print_cautions(const irr_synth_component *c, size_t n, const irr_tables *t)
+{
+	const char *seen[64];
+	size_t nseen = 0;
+	for (size_t i = 0; i < n; i++) {
+		irr_molecule *m = NULL;
+		irr_inventory *inv = NULL;
+		irr_error err;
+		if (irr_molecule_from_smiles(&m, c[i].smiles, "SMILES", &err) == IRR_OK &&
+		    irr_perceive(&inv, m, t, &err) == IRR_OK) {
+			for (size_t k = 0; k < irr_inventory_caution_count(inv); k++) {
+				const char *text = irr_inventory_caution(inv, k);
+				size_t j;
+				for (j = 0; j < nseen && strcmp(seen[j], text); j++)
+					;
+				if (j < nseen)
+					continue;
+				if (nseen < sizeof seen / sizeof seen[0])
+					seen[nseen++] = text; /* static texts (perceive.h) */
+				fprintf(stderr, "irrecon: caution: %s\n", text);
+			}
+		}
+		irr_inventory_free(inv);
+		irr_molecule_free(m);
+	}
 }
 
 enum { O_STRUCTURE = 256, O_STRUCTURE_FILE, O_COMPONENT, O_FORMAT, O_UNITS, O_TITLE, O_OWNER,
@@ -318,6 +350,7 @@ int cmd_synth(int argc, char **argv)
 			goto done;
 		}
 	}
+	print_cautions(comp, ncomp, t);
 	rc = CLI_OK;
 done:
 	free(text);

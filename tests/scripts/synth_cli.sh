@@ -3,7 +3,8 @@
 # seed gives byte-identical files and another seed another file; the output
 # format follows the file name or --format; --range and --spacing set the
 # grid (JCAMP-DX 4.24 ##FIRSTX/##LASTX/##NPOINTS, McDonald & Wilks 1988);
-# transmittance stays in (0, 1] (T = 10^-A); bad input is one line
+# transmittance stays in (0, 1] (T = 10^-A); hazardous structures get
+# their safety caution; bad input is one line
 # "irrecon: ..." on stderr with exit 2, and never clobbers an existing file.
 set -u
 cd "$(dirname "$0")/../.."
@@ -70,6 +71,13 @@ cp "$T/a.jdx" "$T/keep.jdx"
 "$IRRECON" synth --structure 'C1CC(' -o "$T/keep.jdx" 2>/dev/null
 cmp -s "$T/a.jdx" "$T/keep.jdx" || bad "failed run changed the existing output"
 ls "$T" | grep -q '\.tmp\.' && bad "temporary file left behind"
+
+# Safety: an organic azide (the brief's list of hazards: azide, diazo,
+# peroxide) gets the caution on stderr; ethanol gets nothing there.
+err=$("$IRRECON" synth --structure 'CCCN=[N+]=[N-]' -o "$T/az.jdx" 2>&1 >/dev/null) || bad "synth azide failed"
+printf '%s' "$err" | grep -q '^irrecon: caution: azide' || bad "no azide caution: $err"
+err=$("$IRRECON" synth --structure 'CCO' -o "$T/eth.jdx" 2>&1 >/dev/null) || bad "synth ethanol failed"
+[ -z "$err" ] || bad "unexpected stderr for ethanol: $err"
 
 "$IRRECON" synth --help | grep -q '^usage: irrecon synth' || bad "--help"
 [ "$fail" -eq 0 ]
