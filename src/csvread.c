@@ -239,7 +239,7 @@ static int csv_read(irr_spectrum **out, const char *data, size_t len, const char
 	y = malloc(cap * sizeof *y);
 	lines = malloc(cap * sizeof *lines);
 	if (!x || !y || !lines) {
-		rc = irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
+		rc = irr_spectrum__fail(err, IRR_ENOMEM, name, 0, "out of memory");
 		goto done;
 	}
 
@@ -261,7 +261,7 @@ static int csv_read(irr_spectrum **out, const char *data, size_t len, const char
 			have_header = 1;
 			hdr_um = header_x_units(f[0], fl[0]);
 			if (hdr_um < 0) {
-				rc = irr_error_set(err, IRR_EINPUT, name, l.no,
+				rc = irr_spectrum__fail(err, IRR_EINPUT, name, l.no,
 				                   "X column '%.*s' is in nanometres: not an infrared axis (cm-1 or micrometres)",
 				                   (int)(fl[0] > 60 ? 60 : fl[0]), f[0]);
 				goto done;
@@ -274,7 +274,7 @@ static int csv_read(irr_spectrum **out, const char *data, size_t len, const char
 			continue;
 		}
 		if (nf < 2) {
-			rc = irr_error_set(err, IRR_EINPUT, name, l.no,
+			rc = irr_spectrum__fail(err, IRR_EINPUT, name, l.no,
 			                   "expected two columns (X and Y), found %zu%s%s", nf,
 			                   (!decimal_comma && memchr(l.p, ',', l.len)) ? "; " : "",
 			                   (!decimal_comma && memchr(l.p, ',', l.len)) ? DECIMAL_COMMA_HINT : "");
@@ -289,11 +289,11 @@ static int csv_read(irr_spectrum **out, const char *data, size_t len, const char
 				                               (delim == ',' && nf > 2));
 				int len_show = fl[k] > 40 ? 40 : (int)fl[k];
 				if (looks_non_finite(f[k], fl[k]))
-					rc = irr_error_set(err, IRR_EINPUT, name, l.no,
+					rc = irr_spectrum__fail(err, IRR_EINPUT, name, l.no,
 					                   "%s value '%.*s' is not a finite number (NaN or infinity)",
 					                   k ? "Y" : "X", len_show, f[k]);
 				else
-					rc = irr_error_set(err, IRR_EINPUT, name, l.no,
+					rc = irr_spectrum__fail(err, IRR_EINPUT, name, l.no,
 					                   "%s value '%.*s' is not a number%s%s",
 					                   k ? "Y" : "X", len_show, f[k],
 					                   comma ? "; " : "", comma ? DECIMAL_COMMA_HINT : "");
@@ -301,7 +301,7 @@ static int csv_read(irr_spectrum **out, const char *data, size_t len, const char
 			}
 		}
 		if (n >= max_points) {
-			rc = irr_error_set(err, IRR_ELIMIT, name, l.no,
+			rc = irr_spectrum__fail(err, IRR_ELIMIT, name, l.no,
 			                   "more than %zu points (the limit)", max_points);
 			goto done;
 		}
@@ -330,7 +330,7 @@ static int csv_read(irr_spectrum **out, const char *data, size_t len, const char
 		goto done;
 	}
 	if (n == 0) {
-		rc = irr_error_set(err, IRR_EINPUT, name, last_no ? last_no : 1,
+		rc = irr_spectrum__fail(err, IRR_EINPUT, name, last_no ? last_no : 1,
 		                   "no data points: %s", len == 0 ? "the file is empty"
 		                   : "no line holds an X,Y pair of numbers");
 		goto done;
@@ -362,7 +362,7 @@ static int csv_read(irr_spectrum **out, const char *data, size_t len, const char
 	rc = IRR_OK;
 	goto done;
 nomem:
-	rc = irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
+	rc = irr_spectrum__fail(err, IRR_ENOMEM, name, 0, "out of memory");
 done:
 	free(x);
 	free(y);

@@ -149,12 +149,12 @@ static int scan_records(scan *sc, const char *data, size_t len, const char *name
 					le--;
 				normalise_label(q + 2, le, lab, sizeof lab);
 				if (strcmp(lab, "END") != 0)
-					return irr_error_set(err, IRR_EINPUT, name, line,
+					return irr_spectrum__fail(err, IRR_EINPUT, name, line,
 					                     "malformed record: a '##' line without '='");
 				eq = le - 1;
 			}
 			if (grow((void **)&sc->rec, &sc->caprec, sc->nrec + 1, sizeof *sc->rec) < 0)
-				return irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
+				return irr_spectrum__fail(err, IRR_ENOMEM, name, 0, "out of memory");
 			r = &sc->rec[sc->nrec];
 			normalise_label(q + 2, eq, r->label, sizeof r->label);
 			r->val = eq + 1;
@@ -167,10 +167,10 @@ static int scan_records(scan *sc, const char *data, size_t len, const char *name
 			if (!strcmp(r->label, "TITLE")) {
 				block *b;
 				if (depth == MAX_NESTING)
-					return irr_error_set(err, IRR_EINPUT, name, line,
+					return irr_spectrum__fail(err, IRR_EINPUT, name, line,
 					                     "blocks nested more than %d deep", MAX_NESTING);
 				if (grow((void **)&sc->blk, &sc->capblk, sc->nblk + 1, sizeof *sc->blk) < 0)
-					return irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
+					return irr_spectrum__fail(err, IRR_ENOMEM, name, 0, "out of memory");
 				b = &sc->blk[sc->nblk];
 				memset(b, 0, sizeof *b);
 				b->parent = depth ? stack[depth - 1] : -1;
@@ -186,7 +186,7 @@ static int scan_records(scan *sc, const char *data, size_t len, const char *name
 				}
 			} else if (r->block < 0) {
 				if (sc->nblk == 0)
-					return irr_error_set(err, IRR_EINPUT, name, line,
+					return irr_spectrum__fail(err, IRR_EINPUT, name, line,
 					                     "##%s before the first ##TITLE= (a JCAMP-DX block starts with ##TITLE=)",
 					                     r->label);
 			} else {
@@ -210,7 +210,7 @@ static int scan_records(scan *sc, const char *data, size_t len, const char *name
 		line++;
 	}
 	if (sc->nblk == 0)
-		return irr_error_set(err, IRR_EINPUT, name, 1,
+		return irr_spectrum__fail(err, IRR_EINPUT, name, 1,
 		                     "no ##TITLE= record: not a JCAMP-DX file");
 	return IRR_OK;
 }
@@ -240,7 +240,7 @@ int irr_jcamp__list_blocks(irr_block_info **out, size_t *count, const char *data
 	}
 	if (!(bi = calloc(sc.nblk, sizeof *bi))) {
 		scan_free(&sc);
-		return irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
+		return irr_spectrum__fail(err, IRR_ENOMEM, name, 0, "out of memory");
 	}
 	for (size_t i = 0; i < sc.nblk; i++) {
 		bi[i].index = (int)i + 1;
@@ -291,7 +291,7 @@ static int header_number(const record *r, hval *h, const char *name, irr_error *
 	double v;
 	record_text(r, t, sizeof t, 1);
 	if (irr_parse_double(t, &e, &v) < 0 || (*e && *e != ' ' && *e != '\t'))
-		return irr_error_set(err, IRR_EINPUT, name, r->line,
+		return irr_spectrum__fail(err, IRR_EINPUT, name, r->line,
 		                     "##%s=%s is not a number", r->label, t);
 	h->have = 1;
 	h->v = v;
@@ -583,15 +583,15 @@ static int push_value(decoded *d, double v, size_t limit, const char *name, long
 		double *p;
 		if (d->n >= limit) {
 			if (d->fixed)
-				return irr_error_set(err, IRR_EINPUT, name, line,
+				return irr_spectrum__fail(err, IRR_EINPUT, name, line,
 				                     "##NPOINTS=%zu but ##XYDATA holds more values", limit);
-			return irr_error_set(err, IRR_ELIMIT, name, line,
+			return irr_spectrum__fail(err, IRR_ELIMIT, name, line,
 			                     "more %s than %zu (the limit)", what, limit);
 		}
 		if (c > limit)
 			c = limit;
 		if (!(p = realloc(d->raw, c * sizeof *p)))
-			return irr_error_set(err, IRR_ENOMEM, name, line, "out of memory");
+			return irr_spectrum__fail(err, IRR_ENOMEM, name, line, "out of memory");
 		d->raw = p;
 		d->cap = c;
 	}
@@ -608,20 +608,20 @@ static int token_error(const token *t, const char *end, const char *name, long l
 	if (len < 1)
 		len = 1;
 	if (t->kind == TK_MISSING)
-		return irr_error_set(err, IRR_EINPUT, name, line,
+		return irr_spectrum__fail(err, IRR_EINPUT, name, line,
 		                     "missing value '?' in ##%s", rec);
 	if (t->kind == TK_NANWORD)
-		return irr_error_set(err, IRR_EINPUT, name, line,
+		return irr_spectrum__fail(err, IRR_EINPUT, name, line,
 		                     "a value is not a finite number (NaN or infinity) in ##%s", rec);
 	if (t->kind == TK_NONFINITE)
-		return irr_error_set(err, IRR_EINPUT, name, line,
+		return irr_spectrum__fail(err, IRR_EINPUT, name, line,
 		                     "number '%.*s' in ##%s is out of range (not finite)", len, t->at, rec);
 	{
 		unsigned char c = (unsigned char)*t->at;
 		if (c >= 0x20 && c < 0x7f)
-			return irr_error_set(err, IRR_EINPUT, name, line,
+			return irr_spectrum__fail(err, IRR_EINPUT, name, line,
 			                     "unexpected character '%c' in ##%s", c, rec);
-		return irr_error_set(err, IRR_EINPUT, name, line,
+		return irr_spectrum__fail(err, IRR_EINPUT, name, line,
 		                     "unexpected character (byte 0x%02x) in ##%s", c, rec);
 	}
 }
@@ -657,16 +657,16 @@ static int npoints_error(const decoded *d, size_t np, int more, long line_now,
                          const char *name, irr_error *err)
 {
 	if (d->bad_line)
-		return irr_error_set(err, IRR_EINPUT, name, d->bad_line,
+		return irr_spectrum__fail(err, IRR_EINPUT, name, d->bad_line,
 		                     "##NPOINTS=%zu but ##XYDATA holds %s: this line holds %zu Y values where its X and the next line's X imply %.0f%s%.*s%s",
 		                     np, more ? "more values" : "fewer values", d->bad_count,
 		                     d->bad_implied, d->bad_suspect_len ? " (look at '" : "",
 		                     (int)d->bad_suspect_len, d->bad_suspect ? d->bad_suspect : "",
 		                     d->bad_suspect_len ? "')" : "");
 	if (more)
-		return irr_error_set(err, IRR_EINPUT, name, line_now,
+		return irr_spectrum__fail(err, IRR_EINPUT, name, line_now,
 		                     "##NPOINTS=%zu but ##XYDATA holds more values", np);
-	return irr_error_set(err, IRR_EINPUT, name, line_now,
+	return irr_spectrum__fail(err, IRR_EINPUT, name, line_now,
 	                     "##NPOINTS=%zu but ##XYDATA holds %zu values (truncated?)", np, d->n);
 }
 
@@ -691,7 +691,7 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 	if (expect) {
 		/* NPOINTS was checked against the limit before this allocation. */
 		if (!(d->raw = malloc(expect * sizeof *d->raw)))
-			return irr_error_set(err, IRR_ENOMEM, name, r->line, "out of memory");
+			return irr_spectrum__fail(err, IRR_ENOMEM, name, r->line, "out of memory");
 		d->cap = expect;
 		d->fixed = 1;
 		limit = expect;
@@ -710,12 +710,12 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 		}
 		if (t.kind != TK_ABS)
 			return t.kind == TK_DIF || t.kind == TK_DUP
-			       ? irr_error_set(err, IRR_EINPUT, name, line,
+			       ? irr_spectrum__fail(err, IRR_EINPUT, name, line,
 			                       "a data line must start with its X value, not a DIF or DUP character")
 			       : token_error(&t, q, name, line, "XYDATA", err);
 		lx = t.v;
 		if (have_prev_line_x && dx != 0.0 && (lx - prev_line_x) * xfactor * dx <= 0)
-			return irr_error_set(err, IRR_EINPUT, name, line,
+			return irr_spectrum__fail(err, IRR_EINPUT, name, line,
 			                     "X is not monotonic: this line's X (%.10g) does not go on from the previous line's (%.10g)",
 			                     lx, prev_line_x);
 		line_start_n = dif_pending && d->n ? d->n - 1 : d->n;
@@ -751,7 +751,7 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 				break;
 			if (first_y && t.kind != TK_ABS) {
 				if (t.kind == TK_DIF || t.kind == TK_DUP)
-					return irr_error_set(err, IRR_EINPUT, name, line,
+					return irr_spectrum__fail(err, IRR_EINPUT, name, line,
 					                     "the first Y value of a line is a %s, not an absolute value%s",
 					                     t.kind == TK_DIF ? "DIF difference" : "DUP count",
 					                     dif_pending ? " (after a DIF line it must repeat the last Y as a check)" : "");
@@ -776,7 +776,7 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 				if (first_y && dif_pending) {
 					/* The Y-check value. */
 					if (t.v != last)
-						return irr_error_set(err, IRR_EINPUT, name, line,
+						return irr_spectrum__fail(err, IRR_EINPUT, name, line,
 						                     "Y-check value %.10g does not repeat the last value %.10g of the line before (corrupt or truncated data)",
 						                     t.v, last);
 					prev_kind = TK_ABS;
@@ -805,14 +805,14 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 			case TK_DUP: {
 				double cnt = t.v;
 				if (cnt < 1 || cnt != floor(cnt))
-					return irr_error_set(err, IRR_EINPUT, name, line,
+					return irr_spectrum__fail(err, IRR_EINPUT, name, line,
 					                     "bad DUP count %.10g", cnt);
 				if (cnt - 1 > (double)(limit - d->n)) {
 					if (d->fixed)
-						return irr_error_set(err, IRR_EINPUT, name, line,
+						return irr_spectrum__fail(err, IRR_EINPUT, name, line,
 						                     "DUP count %.0f goes beyond the limit set by ##NPOINTS=%zu",
 						                     cnt, expect);
-					return irr_error_set(err, IRR_ELIMIT, name, line,
+					return irr_spectrum__fail(err, IRR_ELIMIT, name, line,
 					                     "DUP count %.0f goes beyond the limit of %zu points",
 					                     cnt, limit);
 				}
@@ -833,7 +833,7 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 			first_y = 0;
 		}
 		if (first_y)
-			return irr_error_set(err, IRR_EINPUT, name, line,
+			return irr_spectrum__fail(err, IRR_EINPUT, name, line,
 			                     "a data line with an X value but no Y values");
 		dif_pending = prev_kind == TK_DIF;
 		prev_line_x = lx;
@@ -876,7 +876,7 @@ static int decode_pairs(decoded *d, const record *r, int group, size_t limit,
 						size_t c = d->ncap_lines ? 2 * d->ncap_lines : 1024;
 						long *nl = realloc(d->lines, c * sizeof *nl);
 						if (!nl)
-							return irr_error_set(err, IRR_ENOMEM, name, line, "out of memory");
+							return irr_spectrum__fail(err, IRR_ENOMEM, name, line, "out of memory");
 						d->lines = nl;
 						d->ncap_lines = c;
 					}
@@ -887,7 +887,7 @@ static int decode_pairs(decoded *d, const record *r, int group, size_t limit,
 		}
 		/* A group does not run over a line end. */
 		if (k != 0)
-			return irr_error_set(err, IRR_EINPUT, name, line,
+			return irr_spectrum__fail(err, IRR_EINPUT, name, line,
 			                     "##%s line ends in the middle of a group: an X without its Y%s",
 			                     recname, group == 3 ? " and width" : "");
 		d->last_line = line;
@@ -909,17 +909,17 @@ static int choose_block(const scan *sc, const irr_read_options *o, const char *n
 	int want = o ? o->block : 0;
 	if (want > 0) {
 		if ((size_t)want > sc->nblk)
-			return irr_error_set(err, IRR_ENOTFOUND, name, 0,
+			return irr_spectrum__fail(err, IRR_ENOTFOUND, name, 0,
 			                     "block %d asked for, but the file has %zu block%s",
 			                     want, sc->nblk, sc->nblk == 1 ? "" : "s");
 		if (sc->blk[want - 1].data_rec < 0)
-			return irr_error_set(err, IRR_ENOTFOUND, name, sc->rec[sc->blk[want - 1].title_rec].line,
+			return irr_spectrum__fail(err, IRR_ENOTFOUND, name, sc->rec[sc->blk[want - 1].title_rec].line,
 			                     "block %d (%s) holds no ##XYDATA, ##XYPOINTS or ##PEAK TABLE",
 			                     want, sc->blk[want - 1].data_type[0] ? sc->blk[want - 1].data_type : "no ##DATA TYPE");
 		return want - 1;
 	}
 	if (want < 0)
-		return irr_error_set(err, IRR_EINPUT, name, 0, "block numbers start at 1");
+		return irr_spectrum__fail(err, IRR_EINPUT, name, 0, "block numbers start at 1");
 	/* The first infrared block with a continuous spectrum; else the first
 	 * infrared peak table; else a lone data block that does not say. */
 	for (int pass = 0; pass < 2; pass++)
@@ -944,12 +944,12 @@ static int choose_block(const scan *sc, const irr_read_options *o, const char *n
 		if (ndata == 0) {
 			for (size_t i = 0; i < sc->nblk; i++)
 				if (sc->blk[i].ntuples_rec >= 0)
-					return irr_error_set(err, IRR_EINPUT, name, sc->rec[sc->blk[i].ntuples_rec].line,
+					return irr_spectrum__fail(err, IRR_EINPUT, name, sc->rec[sc->blk[i].ntuples_rec].line,
 					                     "##NTUPLES (multi-page) data are not supported; no ##XYDATA, ##XYPOINTS or ##PEAK TABLE record");
-			return irr_error_set(err, IRR_EINPUT, name, 0,
+			return irr_spectrum__fail(err, IRR_EINPUT, name, 0,
 			                     "no data record: the file has no ##XYDATA, ##XYPOINTS or ##PEAK TABLE");
 		}
-		return irr_error_set(err, IRR_ENOTFOUND, name, 0,
+		return irr_spectrum__fail(err, IRR_ENOTFOUND, name, 0,
 		                     "no infrared block among %zu blocks; choose one by number (list the blocks first)",
 		                     sc->nblk);
 	}
@@ -1003,7 +1003,7 @@ static int parse_xunits(const char *t)
 
 static int warn(const char *name, irr_error *err, int rc)
 {
-	return rc < 0 ? irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory") : IRR_OK;
+	return rc < 0 ? irr_spectrum__fail(err, IRR_ENOMEM, name, 0, "out of memory") : IRR_OK;
 }
 
 /* Y-range checks (##FIRSTY, ##MAXY, ##MINY) against the decoded data.
@@ -1130,7 +1130,7 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 				record_text(*slot, t1, sizeof t1, 1);
 				record_text(r, t2, sizeof t2, 1);
 				if (strcmp(t1, t2) != 0) {
-					rc = irr_error_set(err, IRR_EINPUT, name, r->line,
+					rc = irr_spectrum__fail(err, IRR_EINPUT, name, r->line,
 					                   "##%s given twice in the block with different values (%s at line %ld, %s here)",
 					                   r->label, t1, (*slot)->line, t2);
 					goto done;
@@ -1143,7 +1143,7 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 			if ((int)i == b->data_rec) {
 				h.data = r;
 			} else if (!strcmp(r->label, sc.rec[b->data_rec].label)) {
-				rc = irr_error_set(err, IRR_EINPUT, name, r->line,
+				rc = irr_spectrum__fail(err, IRR_EINPUT, name, r->line,
 				                   "##%s appears twice in the block (first at line %ld)",
 				                   r->label, sc.rec[b->data_rec].line);
 				goto done;
@@ -1155,7 +1155,7 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 				if ((rc = header_number(r, &again, name, err)) < 0)
 					goto done;
 				if (again.v != hv->v) {
-					rc = irr_error_set(err, IRR_EINPUT, name, r->line,
+					rc = irr_spectrum__fail(err, IRR_EINPUT, name, r->line,
 					                   "##%s given twice in the block with different values (%s at line %ld, %s here)",
 					                   r->label, hv->text, hv->line, again.text);
 					goto done;
@@ -1167,7 +1167,7 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 		}
 	}
 	if (!h.data) {
-		rc = irr_error_set(err, IRR_EINPUT, name, sc.rec[b->title_rec].line,
+		rc = irr_spectrum__fail(err, IRR_EINPUT, name, sc.rec[b->title_rec].line,
 		                   "no data record in the block");
 		goto done;
 	}
@@ -1178,7 +1178,7 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 		record_text(h.xunits, text, sizeof text, 1);
 		xum = parse_xunits(text);
 		if (xum < 0) {
-			rc = irr_error_set(err, IRR_EINPUT, name, h.xunits->line,
+			rc = irr_spectrum__fail(err, IRR_EINPUT, name, h.xunits->line,
 			                   "##XUNITS=%s is not supported (1/CM or MICROMETERS)", text);
 			goto done;
 		}
@@ -1191,7 +1191,7 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 		record_text(h.yunits, text, sizeof text, 1);
 		s->units = parse_yunits(text, &known);
 		if (!known) {
-			rc = irr_error_set(err, IRR_EINPUT, name, h.yunits->line,
+			rc = irr_spectrum__fail(err, IRR_EINPUT, name, h.yunits->line,
 			                   "##YUNITS=%s is not an infrared ordinate (TRANSMITTANCE, %%T, ABSORBANCE, REFLECTANCE, KUBELKA-MUNK or ARBITRARY UNITS)",
 			                   text);
 			goto done;
@@ -1202,19 +1202,19 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 	xf = h.xfactor.have ? h.xfactor.v : 1.0;
 	yf = h.yfactor.have ? h.yfactor.v : 1.0;
 	if (xf == 0.0 || yf == 0.0) {
-		rc = irr_error_set(err, IRR_EINPUT, name, xf == 0.0 ? h.xfactor.line : h.yfactor.line,
+		rc = irr_spectrum__fail(err, IRR_EINPUT, name, xf == 0.0 ? h.xfactor.line : h.yfactor.line,
 		                   "##%s is zero", xf == 0.0 ? "XFACTOR" : "YFACTOR");
 		goto done;
 	}
 	if (h.npoints.have) {
 		if (h.npoints.v < 1 || h.npoints.v != floor(h.npoints.v)) {
-			rc = irr_error_set(err, IRR_EINPUT, name, h.npoints.line,
+			rc = irr_spectrum__fail(err, IRR_EINPUT, name, h.npoints.line,
 			                   "##NPOINTS=%s is not a positive whole number", h.npoints.text);
 			goto done;
 		}
 		/* Checked before anything is allocated for the data. */
 		if (h.npoints.v > (double)limit) {
-			rc = irr_error_set(err, IRR_ELIMIT, name, h.npoints.line,
+			rc = irr_spectrum__fail(err, IRR_ELIMIT, name, h.npoints.line,
 			                   "##NPOINTS=%s is more than the limit of %zu points",
 			                   h.npoints.text, limit);
 			goto done;
@@ -1230,12 +1230,12 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 			int dx_from_lastx = 0;
 			size_t np = h.npoints.have ? (size_t)h.npoints.v : 0;
 			if (strcmp(form, "(X++(Y..Y))") != 0) {
-				rc = irr_error_set(err, IRR_EINPUT, name, h.data->line,
+				rc = irr_spectrum__fail(err, IRR_EINPUT, name, h.data->line,
 				                   "##XYDATA=%s is not supported (only (X++(Y..Y)))", text);
 				goto done;
 			}
 			if (!h.firstx.have || !(h.lastx.have || h.deltax.have)) {
-				rc = irr_error_set(err, IRR_EINPUT, name, h.data->line,
+				rc = irr_spectrum__fail(err, IRR_EINPUT, name, h.data->line,
 				                   "##XYDATA needs ##FIRSTX and ##LASTX (or ##DELTAX)");
 				goto done;
 			}
@@ -1249,12 +1249,12 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 			if ((rc = decode_xydata(&d, h.data, np, limit, xf, x0, dx, name, err)) < 0)
 				goto done;
 			if (d.n == 0) {
-				rc = irr_error_set(err, IRR_EINPUT, name, h.data->line,
+				rc = irr_spectrum__fail(err, IRR_EINPUT, name, h.data->line,
 				                   "##XYDATA holds no values (truncated?)");
 				goto done;
 			}
 			if (h.npoints.have && d.n != np) {
-				rc = irr_error_set(err, IRR_EINPUT, name, d.last_line ? d.last_line : h.data->line,
+				rc = irr_spectrum__fail(err, IRR_EINPUT, name, d.last_line ? d.last_line : h.data->line,
 				                   "##NPOINTS=%zu but ##XYDATA holds %zu values%s",
 				                   np, d.n, d.n < np ? " (truncated?)" : "");
 				goto done;
@@ -1270,7 +1270,7 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 				}
 			}
 			if (n > 1 && dx == 0.0) {
-				rc = irr_error_set(err, IRR_EINPUT, name, h.firstx.line,
+				rc = irr_spectrum__fail(err, IRR_EINPUT, name, h.firstx.line,
 				                   "X is not monotonic: ##FIRSTX equals ##LASTX");
 				goto done;
 			}
@@ -1312,7 +1312,7 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 			d.raw = NULL;
 			s->n = n;
 			if (n < 2) {
-				rc = irr_error_set(err, IRR_EINPUT, name, h.data->line,
+				rc = irr_spectrum__fail(err, IRR_EINPUT, name, h.data->line,
 				                   "1 data point: a spectrum needs at least 2");
 				goto done;
 			}
@@ -1335,13 +1335,13 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 					size_t i = 0;
 					while (i < n && isfinite(s->y[i]))
 						i++;
-					rc = irr_error_set(err, IRR_EINPUT, name, h.data->line,
+					rc = irr_spectrum__fail(err, IRR_EINPUT, name, h.data->line,
 					                   "point %zu is not a finite number after scaling by ##XFACTOR/##YFACTOR",
 					                   i + 1);
 					goto done;
 				}
 				if (!(s->x[0] > 0) || !(s->x[n - 1] > 0)) {
-					rc = irr_error_set(err, IRR_EINPUT, name, h.firstx.line,
+					rc = irr_spectrum__fail(err, IRR_EINPUT, name, h.firstx.line,
 					                   "X runs from %.10g to %.10g: wavenumbers (and wavelengths) are positive, not negative or zero",
 					                   s->x[0], s->x[n - 1]);
 					goto done;
@@ -1353,7 +1353,7 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 			if (!strcmp(form, "(XYW..XYW)") && strcmp(recname, "PEAK TABLE") == 0)
 				group = 3;
 			else if (strcmp(form, "(XY..XY)") != 0) {
-				rc = irr_error_set(err, IRR_EINPUT, name, h.data->line,
+				rc = irr_spectrum__fail(err, IRR_EINPUT, name, h.data->line,
 				                   "##%s=%s is not supported (only (XY..XY)%s)", recname, text,
 				                   group == 2 && !strcmp(recname, "PEAK TABLE") ? " or (XYW..XYW)" : "");
 				goto done;
@@ -1362,12 +1362,12 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 				goto done;
 			n = d.n / 2;
 			if (n == 0) {
-				rc = irr_error_set(err, IRR_EINPUT, name, h.data->line,
+				rc = irr_spectrum__fail(err, IRR_EINPUT, name, h.data->line,
 				                   "##%s holds no values (truncated?)", recname);
 				goto done;
 			}
 			if (h.npoints.have && (double)n != h.npoints.v) {
-				rc = irr_error_set(err, IRR_EINPUT, name, d.last_line ? d.last_line : h.data->line,
+				rc = irr_spectrum__fail(err, IRR_EINPUT, name, d.last_line ? d.last_line : h.data->line,
 				                   "##NPOINTS=%s but ##%s holds %zu points%s", h.npoints.text,
 				                   recname, n, (double)n < h.npoints.v ? " (truncated?)" : "");
 				goto done;
@@ -1434,7 +1434,7 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 	}
 	/* Checked after the data, whose count says more about a truncation. */
 	if (b->end_rec < 0) {
-		rc = irr_error_set(err, IRR_EINPUT, name, sc.rec[b->title_rec].line,
+		rc = irr_spectrum__fail(err, IRR_EINPUT, name, sc.rec[b->title_rec].line,
 		                   "the block has no ##END= record (truncated file?)");
 		goto done;
 	}
@@ -1446,7 +1446,7 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 	rc = IRR_OK;
 	goto done;
 nomem:
-	rc = irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
+	rc = irr_spectrum__fail(err, IRR_ENOMEM, name, 0, "out of memory");
 done:
 	free(d.raw);
 	free(d.lines);

@@ -36,7 +36,16 @@ int irr_spectrum__create(irr_spectrum **out, size_t n, const char *name,
 /* Replaces the point arrays by malloc'd ones (ownership moves to s). */
 void irr_spectrum__adopt(irr_spectrum *s, double *x, double *y, size_t n);
 int irr_spectrum__set_title(irr_spectrum *s, const char *title, size_t len);
-/* Appends a warning (printf-style). Returns IRR_OK or IRR_ENOMEM. */
+/* irr_error_set with numbers always printed with '.', whatever locale the
+ * embedding program has set (messages quote values from the file). */
+int irr_spectrum__fail(irr_error *err, int code, const char *file, long line,
+                       const char *fmt, ...)
+#if defined(__GNUC__)
+	__attribute__((format(printf, 5, 6)))
+#endif
+	;
+/* Appends a warning (printf-style, locale-independent like the above).
+ * Returns IRR_OK or IRR_ENOMEM. */
 int irr_spectrum__warn(irr_spectrum *s, const char *fmt, ...)
 #if defined(__GNUC__)
 	__attribute__((format(printf, 2, 3)))

@@ -7,7 +7,9 @@
 
 #include <errno.h>
 #include <fcntl.h>
+#include <locale.h>
 #include <math.h>
+#include <pthread.h>
 #include <stdarg.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -76,7 +78,7 @@ int irr_spectrum__create(irr_spectrum **out, size_t n, const char *name,
 	*out = NULL;
 	s = calloc(1, sizeof *s);
 	if (!s)
-		return irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
+		return irr_spectrum__fail(err, IRR_ENOMEM, name, 0, "out of memory");
 	s->name = dup_str(name);
 	s->title = dup_str("");
 	s->format = format;
@@ -86,7 +88,7 @@ int irr_spectrum__create(irr_spectrum **out, size_t n, const char *name,
 	}
 	if (!s->name || !s->title || (n && (!s->x || !s->y))) {
 		irr_spectrum_free(s);
-		return irr_error_set(err, IRR_ENOMEM, name, 0,
+		return irr_spectrum__fail(err, IRR_ENOMEM, name, 0,
 		                     "out of memory for %zu points", n);
 	}
 	s->n = n;
@@ -115,12 +117,42 @@ int irr_spectrum__set_title(irr_spectrum *s, const char *title, size_t len)
 	return IRR_OK;
 }
 
+/* The "C" locale for message formatting, made once per process. */
+static locale_t c_numeric;
+static void make_c_numeric(void)
+{
+	c_numeric = newlocale(LC_ALL_MASK, "C", (locale_t)0);
+}
+
+static void format_c(char *buf, size_t size, const char *fmt, va_list ap)
+{
+	static pthread_once_t once = PTHREAD_ONCE_INIT;
+	locale_t old = (locale_t)0;
+	pthread_once(&once, make_c_numeric);
+	if (c_numeric)
+		old = uselocale(c_numeric);
+	vsnprintf(buf, size, fmt, ap);
+	if (c_numeric)
+		uselocale(old);
+}
+
+int irr_spectrum__fail(irr_error *err, int code, const char *file, long line,
+                       const char *fmt, ...)
+{
+	char buf[1024];
+	va_list ap;
+	va_start(ap, fmt);
+	format_c(buf, sizeof buf, fmt, ap);
+	va_end(ap);
+	return irr_error_set(err, code, file, line, "%s", buf);
+}
+
 int irr_spectrum__warn(irr_spectrum *s, const char *fmt, ...)
 {
 	char buf[512];
 	va_list ap;
 	va_start(ap, fmt);
-	vsnprintf(buf, sizeof buf, fmt, ap);
+	format_c(buf, sizeof buf, fmt, ap);
 	va_end(ap);
 	for (char *p = buf; *p; p++)
 		if (*p == '\n' || *p == '\r')
@@ -148,12 +180,12 @@ int irr_spectrum__check_xy(const irr_spectrum *s, const long *lines, irr_error *
 	size_t n = s->n;
 	const double *x = s->x, *y = s->y;
 	if (n < 2)
-		return irr_error_set(err, IRR_EINPUT, s->name, lines && n ? lines[0] : 0,
+		return irr_spectrum__fail(err, IRR_EINPUT, s->name, lines && n ? lines[0] : 0,
 		                     "%zu data point%s: a spectrum needs at least 2",
 		                     n, n == 1 ? "" : "s");
 	for (size_t i = 0; i < n; i++)
 		if (!isfinite(x[i]) || !isfinite(y[i]))
-			return irr_error_set(err, IRR_EINPUT, s->name, lines ? lines[i] : 0,
+			return irr_spectrum__fail(err, IRR_EINPUT, s->name, lines ? lines[i] : 0,
 			                     "point %zu is not a finite number (NaN or infinity)",
 			                     i + 1);
 	{
@@ -161,7 +193,7 @@ int irr_spectrum__check_xy(const irr_spectrum *s, const long *lines, irr_error *
 		for (size_t i = 1; i < n; i++) {
 			double d = x[i] - x[i - 1];
 			if (up ? !(d > 0) : !(d < 0))
-				return irr_error_set(err, IRR_EINPUT, s->name, lines ? lines[i] : 0,
+				return irr_spectrum__fail(err, IRR_EINPUT, s->name, lines ? lines[i] : 0,
 				                     "X is not monotonic: %.10g is followed by %.10g (X must strictly %s)",
 				                     x[i - 1], x[i], up ? "increase" : "decrease");
 		}
@@ -169,7 +201,7 @@ int irr_spectrum__check_xy(const irr_spectrum *s, const long *lines, irr_error *
 	/* Wavenumbers and wavelengths are both positive. */
 	for (size_t i = 0; i < n; i++)
 		if (!(x[i] > 0))
-			return irr_error_set(err, IRR_EINPUT, s->name, lines ? lines[i] : 0,
+			return irr_spectrum__fail(err, IRR_EINPUT, s->name, lines ? lines[i] : 0,
 			                     "X value %.10g is %s: wavenumbers (and wavelengths) are positive",
 			                     x[i], x[i] < 0 ? "negative" : "zero");
 	return IRR_OK;
@@ -182,12 +214,12 @@ int irr_spectrum_from_xy(irr_spectrum **out, const double *x, const double *y,
 	irr_spectrum *s;
 	int rc;
 	if (!out)
-		return irr_error_set(err, IRR_EINPUT, name, 0, "no output pointer");
+		return irr_spectrum__fail(err, IRR_EINPUT, name, 0, "no output pointer");
 	*out = NULL;
 	if (!name)
 		name = "arrays";
 	if (n && (!x || !y))
-		return irr_error_set(err, IRR_EINPUT, name, 0, "no data arrays");
+		return irr_spectrum__fail(err, IRR_EINPUT, name, 0, "no data arrays");
 	if ((rc = irr_spectrum__create(&s, n, name, "arrays", err)) < 0)
 		return rc;
 	if (n) {
@@ -252,9 +284,9 @@ static int binary_error(const char *data, size_t len, size_t nul_at, const char 
                         irr_error *err)
 {
 	if (looks_like_utf16((const unsigned char *)data, len))
-		return irr_error_set(err, IRR_EINPUT, name, 0,
+		return irr_spectrum__fail(err, IRR_EINPUT, name, 0,
 		                     "the file is UTF-16 text; save it as ASCII or UTF-8");
-	return irr_error_set(err, IRR_EINPUT, name, line_of(data, nul_at),
+	return irr_spectrum__fail(err, IRR_EINPUT, name, line_of(data, nul_at),
 	                     "binary data (a NUL byte), not a JCAMP-DX or CSV text file");
 }
 
@@ -274,17 +306,17 @@ int irr_spectrum__slurp(char **out, size_t *len, const char *path,
 	*len = 0;
 	fd = open(path, O_RDONLY | O_CLOEXEC);
 	if (fd < 0)
-		return irr_error_set(err, IRR_EIO, path, 0, "cannot open: %s", strerror(errno));
+		return irr_spectrum__fail(err, IRR_EIO, path, 0, "cannot open: %s", strerror(errno));
 	if (fstat(fd, &st) == 0 && S_ISDIR(st.st_mode)) {
 		close(fd);
-		return irr_error_set(err, IRR_EIO, path, 0, "is a directory, not a file");
+		return irr_spectrum__fail(err, IRR_EIO, path, 0, "is a directory, not a file");
 	}
 	/* The size limit is checked before anything is allocated, so an
 	 * oversized file costs nothing. */
 	if (S_ISREG(st.st_mode)) {
 		if ((unsigned long long)st.st_size > (unsigned long long)max_bytes) {
 			close(fd);
-			return irr_error_set(err, IRR_ELIMIT, path, 0,
+			return irr_spectrum__fail(err, IRR_ELIMIT, path, 0,
 			                     "file is %lld bytes, more than the limit of %zu",
 			                     (long long)st.st_size, max_bytes);
 		}
@@ -304,21 +336,21 @@ int irr_spectrum__slurp(char **out, size_t *len, const char *path,
 				break;
 			if (pr < 0 && errno == EINTR)
 				continue;
-			rc = irr_error_set(err, IRR_EIO, path, 0, "the file changed while it was read");
+			rc = irr_spectrum__fail(err, IRR_EIO, path, 0, "the file changed while it was read");
 			goto done;
 		}
 		if (n + 1 >= cap || !buf) {
 			size_t ncap = buf ? 2 * cap : cap;
 			char *nb;
 			if (buf && cap > max_bytes + 1) {
-				rc = irr_error_set(err, IRR_ELIMIT, path, 0,
+				rc = irr_spectrum__fail(err, IRR_ELIMIT, path, 0,
 				                   "input is more than the limit of %zu bytes", max_bytes);
 				goto done;
 			}
 			if (ncap > max_bytes + 2)
 				ncap = max_bytes + 2;
 			if (!(nb = realloc(buf, ncap))) {
-				rc = irr_error_set(err, IRR_ENOMEM, path, 0, "out of memory");
+				rc = irr_spectrum__fail(err, IRR_ENOMEM, path, 0, "out of memory");
 				goto done;
 			}
 			buf = nb;
@@ -334,7 +366,7 @@ int irr_spectrum__slurp(char **out, size_t *len, const char *path,
 		if (r < 0) {
 			if (errno == EINTR)
 				continue;
-			rc = irr_error_set(err, IRR_EIO, path, 0, "read error: %s", strerror(errno));
+			rc = irr_spectrum__fail(err, IRR_EIO, path, 0, "read error: %s", strerror(errno));
 			goto done;
 		}
 		n += (size_t)r;
@@ -356,7 +388,7 @@ int irr_spectrum__slurp(char **out, size_t *len, const char *path,
 		if (r == 0)
 			break;
 		if (n > max_bytes) {
-			rc = irr_error_set(err, IRR_ELIMIT, path, 0,
+			rc = irr_spectrum__fail(err, IRR_ELIMIT, path, 0,
 			                   "input is more than the limit of %zu bytes", max_bytes);
 			goto done;
 		}
@@ -393,7 +425,7 @@ int irr_spectrum_read_memory(irr_spectrum **out, const char *data, size_t len,
 	const char *z;
 	int rc;
 	if (!out)
-		return irr_error_set(err, IRR_EINPUT, name, 0, "no output pointer");
+		return irr_spectrum__fail(err, IRR_EINPUT, name, 0, "no output pointer");
 	*out = NULL;
 	if (!name)
 		name = "memory";
@@ -404,7 +436,7 @@ int irr_spectrum_read_memory(irr_spectrum **out, const char *data, size_t len,
 	if (!data)
 		len = 0;
 	if (len > irr_spectrum__max_bytes(o))
-		return irr_error_set(err, IRR_ELIMIT, name, 0,
+		return irr_spectrum__fail(err, IRR_ELIMIT, name, 0,
 		                     "input is %zu bytes, more than the limit of %zu",
 		                     len, irr_spectrum__max_bytes(o));
 	if (len && ((z = memchr(data, '\0', len)) || looks_like_utf16((const unsigned char *)data, len)))
@@ -412,7 +444,7 @@ int irr_spectrum_read_memory(irr_spectrum **out, const char *data, size_t len,
 	/* The readers rely on a terminating NUL; a caller's buffer need not
 	 * have one. */
 	if (!(copy = malloc(len + 1)))
-		return irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
+		return irr_spectrum__fail(err, IRR_ENOMEM, name, 0, "out of memory");
 	if (len)
 		memcpy(copy, data, len);
 	copy[len] = '\0';
@@ -433,10 +465,10 @@ int irr_spectrum_read_file(irr_spectrum **out, const char *path,
 	const char *z;
 	int rc;
 	if (!out)
-		return irr_error_set(err, IRR_EINPUT, path, 0, "no output pointer");
+		return irr_spectrum__fail(err, IRR_EINPUT, path, 0, "no output pointer");
 	*out = NULL;
 	if (!path)
-		return irr_error_set(err, IRR_EINPUT, "", 0, "no file name");
+		return irr_spectrum__fail(err, IRR_EINPUT, "", 0, "no file name");
 	if (!o) {
 		irr_read_options_init(&def);
 		o = &def;
@@ -460,13 +492,13 @@ int irr_jcamp_list_blocks(irr_block_info **out, size_t *count, const char *path,
 	size_t len;
 	int rc;
 	if (!out || !count)
-		return irr_error_set(err, IRR_EINPUT, path, 0, "no output pointer");
+		return irr_spectrum__fail(err, IRR_EINPUT, path, 0, "no output pointer");
 	*out = NULL;
 	*count = 0;
 	if ((rc = irr_spectrum__slurp(&buf, &len, path, IRR_SPECTRUM__DEFAULT_MAX_BYTES, NULL, err)) < 0)
 		return rc;
 	if (!looks_like_jcamp(buf, len))
-		rc = irr_error_set(err, IRR_EINPUT, path, 1,
+		rc = irr_spectrum__fail(err, IRR_EINPUT, path, 1,
 		                   "not a JCAMP-DX file (it does not start with a ##LABEL= record)");
 	else
 		rc = irr_jcamp__list_blocks(out, count, buf, len, path, err);
@@ -650,7 +682,7 @@ static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *er
 	if (s->x_micrometers) {
 		for (size_t i = 0; i < n; i++) {
 			if (!(x[i] > 0))
-				return irr_error_set(err, IRR_EINPUT, s->name, 0,
+				return irr_spectrum__fail(err, IRR_EINPUT, s->name, 0,
 				                     "wavelength %g micrometres is not positive", x[i]);
 			x[i] = 1e4 / x[i];
 		}
@@ -733,7 +765,7 @@ static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *er
 		}
 		if (tminpos == HUGE_VAL) {
 			free(sat);
-			return irr_error_set(err, IRR_EINPUT, s->name, 0,
+			return irr_spectrum__fail(err, IRR_EINPUT, s->name, 0,
 			                     "no transmittance value is above zero: the spectrum is all saturated or not transmittance");
 		}
 		if (tmin > 0 && -log10(tmin) >= CLIP_MIN_ABSORBANCE) {
@@ -786,7 +818,7 @@ static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *er
 	return IRR_OK;
 nomem:
 	free(sat);
-	return irr_error_set(err, IRR_ENOMEM, s->name, 0, "out of memory");
+	return irr_spectrum__fail(err, IRR_ENOMEM, s->name, 0, "out of memory");
 }
 
 int irr_spectrum_normalise(irr_spectrum *s, irr_error *err)
@@ -795,18 +827,18 @@ int irr_spectrum_normalise(irr_spectrum *s, irr_error *err)
 	size_t nwarn;
 	int rc;
 	if (!s)
-		return irr_error_set(err, IRR_EINPUT, "", 0, "no spectrum");
+		return irr_spectrum__fail(err, IRR_EINPUT, "", 0, "no spectrum");
 	if (s->normalised)
 		return IRR_OK;
 	if (s->n < 2)
-		return irr_error_set(err, IRR_EINPUT, s->name, 0,
+		return irr_spectrum__fail(err, IRR_EINPUT, s->name, 0,
 		                     "%zu data point(s): a spectrum needs at least 2", s->n);
 	x = malloc(s->n * sizeof *x);
 	y = malloc(s->n * sizeof *y);
 	if (!x || !y) {
 		free(x);
 		free(y);
-		return irr_error_set(err, IRR_ENOMEM, s->name, 0, "out of memory");
+		return irr_spectrum__fail(err, IRR_ENOMEM, s->name, 0, "out of memory");
 	}
 	/* Copied in ascending order straight away (IR files usually run from
 	 * high to low wavenumber); micrometres are reversed after conversion. */
