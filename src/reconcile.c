@@ -397,22 +397,29 @@ int irr_check_add_other(irr_check *c, irr_other_kind kind, const char *what,
 		rc = irr_error_set(err, IRR_ENOMEM, "", 0, "out of memory");
 		goto fail;
 	}
-	rc = irr_molecule_from_smiles(&o.mol, o.smiles, "SMILES", err);
-	if (rc) {
-		if (!o.solvent && err)
-			irr_error_set(err, IRR_EINPUT, irr_other_kind_name(kind), 0,
-			              "'%s' is neither a name in the solvent library nor valid SMILES (%s)",
-			              what, err->message);
-		goto fail;
+	{
+		irr_error perr;
+		irr_error_clear(&perr);
+		rc = irr_molecule_from_smiles(&o.mol, o.smiles, "SMILES", &perr);
+		if (rc) {
+			if (o.solvent)
+				irr_error_set(err, rc, o.solvent->name, 0, "library SMILES '%s': %s",
+				              o.smiles, perr.message);
+			else
+				irr_error_set(err, IRR_EINPUT, irr_other_kind_name(kind), 0,
+				              "'%s' is neither a name in the solvent library nor valid SMILES (%s)",
+				              what, perr.message[0] ? perr.message : "not parsed");
+			goto fail;
+		}
 	}
 	if ((rc = irr_perceive(&o.inv, o.mol, c->t, err)))
 		goto fail;
+	clear_result(c); /* before the array moves: it frees per-substance results */
 	grown = realloc(c->others, (c->nothers + 1) * sizeof *grown);
 	if (!grown) {
 		rc = irr_error_set(err, IRR_ENOMEM, "", 0, "out of memory");
 		goto fail;
 	}
-	clear_result(c);
 	c->others = grown;
 	c->others[c->nothers++] = o;
 	return IRR_OK;
