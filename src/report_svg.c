@@ -462,11 +462,12 @@ static void place_labels(sbuf *b, const layout *L, label_req *req, size_t nreq,
 		double w = text_width(req[r].text, fs, 0) + 4.0;
 		int done = 0;
 		/* Try steps away from the marker in its direction, then the other
-		 * way; at each height try centred, then shifted left and right. */
+		 * way; at each height try centred, then shifted left and right by
+		 * less than half the label, so it always stands over its marker. */
 		for (int pass = 0; pass < 2 && !done; pass++) {
 			int dir = pass == 0 ? req[r].dir : -req[r].dir;
 			for (int k = 0; k < 24 && !done; k++) {
-				static const double shift[] = {0.0, -0.5, 0.5, -1.0, 1.0};
+				static const double shift[] = {0.0, -0.4, 0.4};
 				for (size_t sidx = 0; sidx < sizeof shift / sizeof shift[0] && !done; sidx++) {
 					box bx;
 					double cy = req[r].ay + dir * (9.0 + lh * 0.5 + k * lh * 0.75);
@@ -1284,6 +1285,12 @@ int irr_report_svg(char **out, const irr_check *c, const irr_svg_options *o)
 				snprintf(k->label, sizeof k->label, "%s %s", word, pos);
 				k->prio = 2;
 				k->weight = e->weight;
+			} else if (e && word[0] && ob->peak->rel_height >= 0.5) {
+				/* The strongest bands are key to the eye even where the
+				 * tables weigh them little (the crowded fingerprint). */
+				snprintf(k->label, sizeof k->label, "%s %s", word, pos);
+				k->prio = 4;
+				k->weight = ob->peak->rel_height;
 			}
 			break;
 		}
