@@ -15,6 +15,7 @@
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
+#include <locale.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -269,6 +270,42 @@ static void reading_a_file_and_missing_files(void **state)
 	irr_spectrum_free(NULL);
 }
 
+/* The library reads and writes numbers with '.', whatever locale the
+ * embedding program chose (setlocale in a German desktop program). */
+static void numbers_ignore_the_locale(void **state)
+{
+	irr_spectrum *s;
+	(void)state;
+	char dir[] = "/tmp/irrecon-test-locale-XXXXXX", cmd[256], probe[16];
+	if (!setlocale(LC_ALL, "de_DE.UTF-8")) {
+		/* Not installed: build it in a private folder (glibc's localedef,
+		 * found through LOCPATH), leaving the machine's locales alone. */
+		if (mkdtemp(dir)) {
+			snprintf(cmd, sizeof cmd,
+			         "localedef -i de_DE -f UTF-8 %s/de_DE.UTF-8 >/dev/null 2>&1", dir);
+			if (system(cmd) != -1) {
+				setenv("LOCPATH", dir, 1);
+				setlocale(LC_ALL, "de_DE.UTF-8");
+			}
+		}
+	}
+	snprintf(probe, sizeof probe, "%.2f", 3.25);
+	if (strcmp(probe, "3,25") != 0) {
+		setlocale(LC_ALL, "C");
+		print_message("skipped: no decimal-comma locale (de_DE.UTF-8) available\n");
+		skip();
+	}
+	s = read_text("x,y\n1000.5,0.25\n2000.5,0.5\n", NULL);
+	assert_true(irr_spectrum_x(s)[0] == 1000.5 && irr_spectrum_y(s)[0] == 0.25);
+	irr_spectrum_free(s);
+	expect_error("x,y\n1000.5,0.1\n900.25,0.2\n1100.75,0.3\n", NULL, IRR_EINPUT, 4,
+	             "900.25 is followed by 1100.75");
+	setlocale(LC_ALL, "C");
+	snprintf(cmd, sizeof cmd, "rm -rf %s", dir);
+	if (dir[sizeof dir - 2] != 'X' && system(cmd) == -1)
+		print_message("could not remove %s\n", dir);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -278,6 +315,7 @@ int main(void)
 		cmocka_unit_test(decimal_commas_only_when_asked),
 		cmocka_unit_test(bad_csv),
 		cmocka_unit_test(reading_a_file_and_missing_files),
+		cmocka_unit_test(numbers_ignore_the_locale),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
