@@ -15,6 +15,7 @@
 #include <string.h>
 
 #define MAX_NESTING 32
+#define MAX_RECORDS 200000
 
 typedef struct record {
 	char label[48];   /* normalised: no blanks, '-', '/', '_'; upper case */
@@ -153,6 +154,13 @@ static int scan_records(scan *sc, const char *data, size_t len, const char *name
 					                     "malformed record: a '##' line without '='");
 				eq = le - 1;
 			}
+			/* Real files hold tens of records (a few thousand with
+			 * pages); a flood of "##X=" lines is not a spectrum and must
+			 * not cost gigabytes of record table. */
+			if (sc->nrec >= MAX_RECORDS)
+				return irr_spectrum__fail(err, IRR_ELIMIT, name, line,
+				                          "more than %d labelled records: not an infrared JCAMP-DX file (the limit)",
+				                          MAX_RECORDS);
 			if (grow((void **)&sc->rec, &sc->caprec, sc->nrec + 1, sizeof *sc->rec) < 0)
 				return irr_spectrum__fail(err, IRR_ENOMEM, name, 0, "out of memory");
 			r = &sc->rec[sc->nrec];

@@ -781,6 +781,27 @@ static void bad_input_fails_with_file_and_line(void **state)
 	}
 }
 
+/* A flood of labelled records is refused at a fixed count (200,000, far
+ * beyond real files) instead of growing a record table without end. */
+static void record_flood_hits_the_limit(void **state)
+{
+	size_t n = 250000, len = 0;
+	char *text = malloc(16 + n * 6);
+	irr_spectrum *s = NULL;
+	irr_error err;
+	(void)state;
+	assert_non_null(text);
+	len += (size_t)sprintf(text, "##TITLE= flood\n");
+	for (size_t i = 0; i < n; i++) {
+		memcpy(text + len, "##X=1\n", 6);
+		len += 6;
+	}
+	assert_int_equal(irr_spectrum_read_memory(&s, text, len, "flood.jdx", NULL, &err), IRR_ELIMIT);
+	assert_null(s);
+	assert_int_equal(err.line, 200001); /* record 200,001 (the title is record 1) */
+	free(text);
+}
+
 static void binary_and_truncated_shared_file(void **state)
 {
 	static const char garbage[] = "##TITLE= x\n\x01\x02\x00\x7f\xff binary";
@@ -829,6 +850,7 @@ int main(void)
 		cmocka_unit_test(xypoints_and_peak_table),
 		cmocka_unit_test(link_file_blocks),
 		cmocka_unit_test(bad_input_fails_with_file_and_line),
+		cmocka_unit_test(record_flood_hits_the_limit),
 		cmocka_unit_test(binary_and_truncated_shared_file),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
