@@ -520,9 +520,8 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		/* Resample at the median spacing; a file with large gaps could ask
 		 * for a huge grid, so the grid is capped at 4x the points given. */
 		double span = x0[n0 - 1] - x0[0];
-		size_t m = (size_t)floor(span / med) + 1;
-		if (m > 4 * n0 + 16)
-			m = 4 * n0 + 16;
+		double mf = floor(span / med) + 1.0;
+		size_t m = mf < (double)(4 * n0 + 16) ? (size_t)mf : 4 * n0 + 16;
 		n = m;
 		dx = span / (double)(n - 1);
 	}
@@ -845,11 +844,12 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 				if (m >= 4 && !p.shoulder) {
 					double v = vertex_fit(w.c, i, m, lv, rv);
 					if (!isnan(v)) {
-						double t = (double)i + v;
-						size_t ic = (size_t)floor(t + 0.5);
-						double v2 = ic > lv && ic < rv ? vertex_fit(w.c, ic, m, lv, rv) : NAN;
+						double t = (double)i + v, tc = floor(t + 0.5);
+						double v2 = NAN;
+						if (tc > (double)lv && tc < (double)rv)
+							v2 = vertex_fit(w.c, (size_t)tc, m, lv, rv);
 						if (!isnan(v2))
-							t = (double)ic + v2;
+							t = tc + v2;
 						if (t > (double)lv && t < (double)rv)
 							p.position = x_at(w.x, n, t);
 					}
