@@ -1041,16 +1041,23 @@ static int check_y_headers(irr_spectrum *s, const header *h, const decoded *d, d
 			int maxy_agrees = 0;
 			firsty_bad = 1;
 			if (implied != 0.0 && h->maxy.have) {
-				double tm = fmax(fabs(implied), 0.5 * printed_unit(h->maxy.text)) + 1e-9 * fabs(h->maxy.v);
+				/* FIRSTY is itself rounded (jtpolysd's to ~1e-8): the
+				 * implied factor only counts to a few parts per million. */
+				double tm = fmax(fabs(implied), 0.5 * printed_unit(h->maxy.text)) + 1e-5 * fabs(h->maxy.v);
 				double m = implied > 0 ? rmax * implied : rmin * implied;
 				if (yf < 0)
 					m = implied > 0 ? rmin * implied : rmax * implied;
 				maxy_agrees = fabs(m - h->maxy.v) <= tm;
 			}
 			char hint[128] = "";
-			if (implied != 0.0)
-				snprintf(hint, sizeof hint, "; %s fit a YFACTOR of %.10g",
-				         maxy_agrees ? "##FIRSTY and ##MAXY both" : "##FIRSTY would", implied);
+			if (implied != 0.0) {
+				/* Six digits: the rounding of FIRSTY allows no more. */
+				char num[40];
+				double mag = pow(10.0, floor(log10(fabs(implied))) - 5);
+				irr_format_double(num, sizeof num, nearbyint(implied / mag) * mag, -1);
+				snprintf(hint, sizeof hint, "; %s fit a YFACTOR of %s",
+				         maxy_agrees ? "##FIRSTY and ##MAXY both" : "##FIRSTY would", num);
+			}
 			rc = irr_spectrum__warn(s,
 			        "##YFACTOR=%s does not fit ##FIRSTY=%s: the first Y decodes to %.8g (off by %.3g, more than one YFACTOR step)%s",
 			        h->yfactor.text, h->firsty.text, y0, y0 - h->firsty.v, hint);

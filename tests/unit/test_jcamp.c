@@ -305,6 +305,9 @@ static void polystyrene_files_hold_the_same_integers(void **state)
 	}
 	assert_true(has_warning(b, "##YFACTOR"));
 	assert_true(has_warning(b, "##FIRSTY"));
+	/* The warning points at the right factor (README.md: 2.384185791e-09,
+	 * to the six digits FIRSTY supports). */
+	assert_true(has_warning(b, "2.38419e-09"));
 	assert_false(has_warning(a, "##YFACTOR"));
 	irr_spectrum_free(a);
 	irr_spectrum_free(b);
