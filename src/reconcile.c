@@ -1354,12 +1354,13 @@ int irr_check_run(irr_check *c, irr_error *err)
 				    (iclass(ob->intensity) < 3 && ob->weight < 0.3))
 					continue;
 				/* The product explains it when one of its own bands, not
-				 * an overtone and not two classes weaker, covers it. */
+				 * an overtone and not two classes weaker, holds its
+				 * typical position (within 5 cm-1). */
 				for (size_t i = 0; i < ne && !dup; i++) {
 					const irr_band *pb = c->exp[i].band;
 					if (!pb->overtone && pb->weight > 0 &&
 					    c->eclass[i] + 1 >= iclass(ob->intensity) &&
-					    overlaps(ob->low, ob->high, pb->low, pb->high))
+					    ob->typical >= pb->low - 5 && ob->typical <= pb->high + 5)
 						dup = 1;
 				}
 				/* A library band and a predicted band for one vibration:
@@ -1389,8 +1390,8 @@ int irr_check_run(irr_check *c, irr_error *err)
 					      (p->broad && p->high > p->low && ob->typical > p->low &&
 					       ob->typical < p->high)))
 						continue;
-					if (ob->shape == IRR_SHAPE_VERY_BROAD && !p->broad && p->fwhm > 0 &&
-					    p->fwhm < 0.5 * c->opt.peaks.broad_cm)
+					/* a broad marker (an H-bonded O-H) only in a broad peak */
+					if (is_broad_shape(ob->shape) && !p->broad && p->fwhm > 0)
 						continue;
 					if (mk->peak < 0 || p->height > c->obs[mk->peak].peak->height)
 						mk->peak = (long)j;
@@ -1415,8 +1416,39 @@ int irr_check_run(irr_check *c, irr_error *err)
 			r->formula = irr_molecule_formula(oi->mol);
 			r->markers = oi->markers;
 			r->nmarkers = oi->nmarkers;
-			r->presence = found ? IRR_PRESENCE_LIKELY_PRESENT
-			            : observable ? IRR_PRESENCE_ABSENT : IRR_PRESENCE_CANNOT_TELL;
+			/* A single fingerprint coincidence does not outweigh an
+			 * observable marker in the diagnostic region that is not
+			 * there (a trace that shows its C-O band shows its O-H). */
+			{
+				size_t diag_found = 0, diag_missing = 0, fp_found = 0;
+				int fp_class = 0;
+				for (size_t q = 0; q < oi->nmarkers; q++) {
+					const irr_marker *mk = &oi->markers[q];
+					if (mk->observable && mk->typical < 1500 && mk->peak >= 0) {
+						fp_found++;
+						if (iclass(mk->intensity) > fp_class)
+							fp_class = iclass(mk->intensity);
+					}
+				}
+				/* only a missing marker at least as strong as the found
+				 * fingerprint one speaks against it */
+				for (size_t q = 0; q < oi->nmarkers; q++) {
+					const irr_marker *mk = &oi->markers[q];
+					if (!mk->observable || mk->typical < 1500)
+						continue;
+					if (mk->peak >= 0)
+						diag_found++;
+					else if (iclass(mk->intensity) >= fp_class)
+						diag_missing++;
+				}
+				if (diag_found || (fp_found && !diag_missing) || fp_found >= 2)
+					r->presence = IRR_PRESENCE_LIKELY_PRESENT;
+				else if (observable)
+					r->presence = IRR_PRESENCE_ABSENT;
+				else
+					r->presence = IRR_PRESENCE_CANNOT_TELL;
+				(void)found;
+			}
 		}
 		/* A substance whose markers are there to see and missing does not
 		 * take the blame for other bands either. */

@@ -10,6 +10,8 @@
  *    tests/data/check/wrong-structures.tsv (band positions per Silverstein,
  *    Webster & Kiemle, 7th ed., ch. 2; from memory).
  *  - Mixtures made from two of those spectra: tests/data/check/mixtures.tsv.
+ *  - Precursors named beside a pure compound's spectrum:
+ *    tests/data/check/absent-precursors.tsv.
  *  - Band lists of N-methylaniline and benzoic acid as tabulated in
  *    Silverstein, Webster & Kiemle, 7th ed., ch. 2 figures, and the SDBS
  *    spectra of those compounds; from memory. Marked where used.
@@ -397,6 +399,32 @@ static void no_marker_is_cannot_tell(void **state)
 	irr_check_free(c);
 }
 
+static int nabsent;
+
+static void absent_row(char **f, int nf)
+{
+	irr_check *c;
+	const irr_other *o;
+	assert_true(nf >= 5);
+	c = run_check(f[1], read_ref(f[0]), NULL, !strcmp(f[2], "atr") ? IRR_SAMPLING_ATR
+	              : IRR_SAMPLING_TRANSMISSION, "starting_material", f[3]);
+	o = irr_check_other(c, 0);
+	if (o->presence == IRR_PRESENCE_LIKELY_PRESENT || o->nattributed)
+		fail_msg("%s with %s (%s) named: %s, %zu bands attributed", f[0], f[3], f[4],
+		         irr_presence_name(o->presence), o->nattributed);
+	assert_int_equal(irr_check_verdict(c), IRR_VERDICT_CONSISTENT);
+	nabsent++;
+	irr_check_free(c);
+}
+
+static void precursor_not_there_is_not_present(void **state)
+{
+	(void)state;
+	NEED_REF();
+	each_row("absent-precursors.tsv", absent_row);
+	assert_true(nabsent >= 9);
+}
+
 /* ---- Rules of thumb (common practice) ---- */
 
 static irr_peaklist *peaks_from(const char *csv)
@@ -677,6 +705,7 @@ int main(void)
 		cmocka_unit_test(reference_spectra_wrong_structures),
 		cmocka_unit_test(mixtures_find_the_second_compound),
 		cmocka_unit_test(no_marker_is_cannot_tell),
+		cmocka_unit_test(precursor_not_there_is_not_present),
 		cmocka_unit_test(primary_amine_two_nh_secondary_one),
 		cmocka_unit_test(broad_oh_with_carbonyl_is_acid),
 		cmocka_unit_test(aromatic_ring_and_ch_above_3000),
