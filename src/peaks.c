@@ -49,8 +49,8 @@
 #define AUTO_SMOOTH_CM 7.0
 /* Shoulders need a deeper second-derivative lobe than maxima need
  * prominence: the second derivative amplifies noise and ripple. */
-#define SHOULDER_SNR_FACTOR 1.6
-#define SHOULDER_REL_LOBE 0.10
+#define DEF_SHOULDER_FACTOR 1.6
+#define DEF_SHOULDER_DEPTH 0.10
 #define NOISE_BLOCK 96
 
 void irr_peak_options_init(irr_peak_options *o)
@@ -65,6 +65,8 @@ void irr_peak_options_init(irr_peak_options *o)
 	o->broad_cm = DEF_BROAD;
 	o->shoulders = 1;
 	o->baseline = 1;
+	o->shoulder_factor = DEF_SHOULDER_FACTOR;
+	o->shoulder_depth = DEF_SHOULDER_DEPTH;
 }
 
 /* ---- the list object ---------------------------------------------------- */
@@ -454,6 +456,10 @@ static int check_options(const irr_peak_options *o, const char *name, irr_error 
 		                     "intensity thresholds must satisfy 0 <= medium <= strong <= 1");
 	if (!(o->broad_cm > 0.0) || !isfinite(o->broad_cm))
 		return irr_error_set(err, IRR_EINPUT, name, 0, "broad threshold must be > 0 cm-1");
+	if (!(o->shoulder_factor >= 0.0) || !isfinite(o->shoulder_factor) ||
+	    !(o->shoulder_depth >= 0.0 && o->shoulder_depth <= 1.0))
+		return irr_error_set(err, IRR_EINPUT, name, 0,
+		                     "shoulder factor must be >= 0 and shoulder depth within 0..1");
 	return IRR_OK;
 }
 
@@ -894,7 +900,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 				if (!(nd2[i] > nd2[i - 1] && nd2[i] >= nd2[i + 1] && nd2[i] > 0.0))
 					continue;
 				double base = w.lb[i] > w.rb[i] ? w.lb[i] : w.rb[i];
-				if (nd2[i] - base < SHOULDER_SNR_FACTOR * o->min_snr * w.nd2[i])
+				if (nd2[i] - base < o->shoulder_factor * o->min_snr * w.nd2[i])
 					continue;
 				sig[ns++] = i;
 			}
@@ -917,7 +923,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 				/* A shoulder must stand higher above the baseline than a
 				 * maximum (the rubber band lies on the noise's lowest
 				 * dips, which lifts every height by a few noise sd). */
-				if (w.c[i] < SHOULDER_SNR_FACTOR * o->min_snr * w.noise[i])
+				if (w.c[i] < o->shoulder_factor * o->min_snr * w.noise[i])
 					continue;
 				/* Next to a kept maximum it is part of that maximum's
 				 * top (a flat top has two lobes), not a separate band;
@@ -956,7 +962,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 						if (nd2[j] > ref)
 							ref = nd2[j];
 					double base = w.lb[i] > w.rb[i] ? w.lb[i] : w.rb[i];
-					if (nd2[i] - base < SHOULDER_REL_LOBE * ref)
+					if (nd2[i] - base < o->shoulder_depth * ref)
 						continue;
 				}
 				{

@@ -60,6 +60,14 @@ typedef struct irr_peak_options {
 	int shoulders;         /* look for shoulders (second derivative) */
 	int baseline;          /* remove the baseline first (0: absorbance 0 is
 	                        * the baseline) */
+	/* Added after the first contract: */
+	double shoulder_factor; /* a shoulder needs shoulder_factor times the
+	                         * maxima's signal-to-noise (default 1.6: the
+	                         * second derivative amplifies noise) */
+	double shoulder_depth;  /* and a second-derivative lobe at least this
+	                         * fraction as deep as the nearest maximum's
+	                         * (default 0.10; keeps ripple of low-noise,
+	                         * digitised data out) */
 } irr_peak_options;
 
 void irr_peak_options_init(irr_peak_options *o);

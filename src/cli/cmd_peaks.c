@@ -23,7 +23,7 @@ typedef struct opt_def {
 static const opt_def opts[] = {
 	{"--json", NULL, "print JSON (schema irrecon.peaks/1) instead of the table"},
 	{"--output", "FILE", "write to FILE (replaced atomically) instead of stdout"},
-	{"--block", "N", "compound JCAMP-DX file: use block N (1-based; default: the infrared one)"},
+	{"--block", "N", "compound JCAMP-DX: block N (default: the infrared one)"},
 	{"--list-blocks", NULL, "list the blocks of a JCAMP-DX file and stop"},
 	{"--peak-list", NULL, "FILE is a peak list (CSV or JSON), not a spectrum"},
 	{"--decimal-comma", NULL, "CSV: ',' is the decimal separator"},
@@ -32,13 +32,15 @@ static const opt_def opts[] = {
 	{"--y-units", "UNITS", "CSV without a units header: absorbance, transmittance,\n"
 	                       "                       percent_transmittance, reflectance, kubelka_munk"},
 	{"--micrometres", NULL, "CSV: X is wavelength in micrometres"},
-	{"--smooth", "CM", "Savitzky-Golay window width in cm-1 (default: auto, 7 cm-1)"},
+	{"--smooth", "CM", "Savitzky-Golay window, cm-1 (default: auto, 7 cm-1)"},
 	{"--min-snr", "X", "minimum prominence in noise units (default 5)"},
-	{"--min-rel", "F", "ignore bands smaller than F of the strongest (default 0.01)"},
+	{"--min-rel", "F", "drop bands under F of the strongest (default 0.01)"},
 	{"--strong", "F", "relative height for 'strong' (default 0.33)"},
 	{"--medium", "F", "relative height for 'medium' (default 0.10)"},
 	{"--broad", "CM", "FWHM at or above which a band is broad (default 60)"},
 	{"--no-shoulders", NULL, "do not look for shoulders"},
+	{"--shoulder-factor", "X", "shoulders need X x the maxima's S/N (default 1.6)"},
+	{"--shoulder-depth", "F", "and a lobe F as deep as the nearest maximum's (0.10)"},
 	{"--no-baseline", NULL, "do not subtract a baseline"},
 	{"--help", NULL, "show this help"},
 	{NULL, NULL, NULL}
@@ -322,6 +324,10 @@ int cmd_peaks(int argc, char **argv)
 				po.medium_frac = num;
 			else if (!strcmp(a, "--broad"))
 				po.broad_cm = num;
+			else if (!strcmp(a, "--shoulder-factor"))
+				po.shoulder_factor = num;
+			else if (!strcmp(a, "--shoulder-depth"))
+				po.shoulder_depth = num;
 		}
 	}
 	if (!path)
