@@ -28,9 +28,9 @@ static const opt_def opts[] = {
 	{"--decimal-comma", NULL, "CSV: ',' is the decimal separator"},
 	{"--max-bytes", "N", "refuse files larger than N bytes (default 256 MiB)"},
 	{"--max-points", "N", "refuse spectra of more than N points (default 4,000,000)"},
-	{"--y-units", "UNITS", "CSV without a units header: absorbance, transmittance, ..."},
+	{"--y-units", "UNITS", "CSV without units header: absorbance, transmittance, ..."},
 	{"--search", "CM", "look for each band within +-CM cm-1 (default 6)"},
-	{"--min-snr", "X", "a band must stand X noise units above its surroundings (default 5)"},
+	{"--min-snr", "X", "a band must stand X noise sd above its valleys (default 5)"},
 	{"--help", NULL, "show this help"},
 	{NULL, NULL, NULL}
 };
