@@ -30,7 +30,7 @@ static const opt_def opts[] = {
 	{"--max-points", "N", "refuse spectra of more than N points (default 4,000,000)"},
 	{"--y-units", "UNITS", "CSV without units header: absorbance, transmittance, ..."},
 	{"--search", "CM", "look for each band within +-CM cm-1 (default 6)"},
-	{"--min-snr", "X", "a band must stand X noise sd above its valleys (default 5)"},
+	{"--min-snr", "X", "a band must stand X noise sd above its valleys (5)"},
 	{"--help", NULL, "show this help"},
 	{NULL, NULL, NULL}
 };
