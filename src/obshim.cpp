@@ -184,6 +184,52 @@ struct LogMark {
 	}
 };
 
+/* The largest valence (bond orders plus hydrogens) that the common
+ * organic elements take in a given charge state; -1 when not checked
+ * (metals, hypervalent main-group atoms). A neutral N may be written
+ * pentavalent only in the old nitro / N-oxide spelling with =O. */
+int max_valence(int z, int q)
+{
+	switch (z) {
+	case 6:
+		return 4 - (q < 0 ? -q : q);
+	case 7:
+		return q == 0 ? 3 : q == 1 ? 4 : q == -1 ? 2 : -1;
+	case 8:
+		return q == 0 ? 2 : q == 1 ? 3 : q == -1 ? 1 : -1;
+	case 9:
+		return q == 0 ? 1 : q == -1 ? 0 : -1;
+	case 5:
+		return q == 0 ? 3 : q == -1 ? 4 : -1;
+	case 14:
+		return q == 0 ? 4 : -1;
+	default:
+		return -1;
+	}
+}
+
+std::string valence_problem(OBAtom *a)
+{
+	int z = static_cast<int>(a->GetAtomicNum());
+	int q = a->GetFormalCharge();
+	int lim = max_valence(z, q);
+	if (lim < 0)
+		return "";
+	int v = static_cast<int>(a->GetExplicitValence() + a->GetImplicitHCount());
+	if (v <= lim)
+		return "";
+	if (z == 7 && q == 0 && v == 5) {
+		FOR_BONDS_OF_ATOM(b, a)
+			if (b->GetBondOrder() == 2 && b->GetNbrAtom(a)->GetAtomicNum() == 8)
+				return "";
+	}
+	static const char *const sym[] = {"", "H", "He", "Li", "Be", "B", "C", "N", "O", "F",
+	                                  "Ne", "Na", "Mg", "Al", "Si"};
+	return std::string("atom ") + std::to_string(a->GetIdx()) + " (" + sym[z] +
+	       (q ? (q > 0 ? ", charge +" + std::to_string(q) : ", charge " + std::to_string(q)) : "") +
+	       ") has valence " + std::to_string(v) + ", more than " + std::to_string(lim);
+}
+
 int heavy_neighbour_other_than(OBAtom *a, OBAtom *not_this)
 {
 	int best = -1;
@@ -215,6 +261,15 @@ int extract(irr_obshim_mol *m, size_t max_heavy, irr_obshim_graph *g, char *why,
 		if (a->GetAtomicNum() == 1 && a->GetExplicitDegree() > 1) {
 			copy_text(why, why_size, "hydrogen atom " + std::to_string(i) + " has " +
 			          std::to_string(a->GetExplicitDegree()) + " bonds (a hydrogen takes one)");
+			return IRR_EINPUT;
+		}
+	}
+	/* Valence: Open Babel reads "FCC(F)F" or "PO=C=O" without complaint. */
+	for (size_t i = 1; i <= nall; i++) {
+		OBAtom *a = mol.GetAtom(static_cast<int>(i));
+		std::string bad = valence_problem(a);
+		if (!bad.empty()) {
+			copy_text(why, why_size, bad);
 			return IRR_EINPUT;
 		}
 	}

@@ -55,17 +55,21 @@ static int element_of(const char *sym, size_t len)
 }
 
 /* The element symbol at s inside a bracket atom: its length, or 0 when s
- * does not start with a known element (aromatic spellings included). */
-static size_t bracket_symbol(const char *s, int *is_h)
+ * does not start with a known element. *is_h: hydrogen; *arom: an aromatic
+ * (lower-case) spelling. */
+static size_t bracket_symbol(const char *s, int *is_h, int *arom)
 {
 	static const char *const aromatic[] = {"se", "as", "te", "si", "c", "n", "o", "p", "s", "b"};
 	*is_h = 0;
+	*arom = 0;
 	if (*s == '*')
 		return 1;
 	for (size_t i = 0; i < sizeof aromatic / sizeof aromatic[0]; i++) {
 		size_t n = strlen(aromatic[i]);
-		if (strncmp(s, aromatic[i], n) == 0)
+		if (strncmp(s, aromatic[i], n) == 0) {
+			*arom = 1;
 			return n;
+		}
 	}
 	if (*s < 'A' || *s > 'Z')
 		return 0;
@@ -78,28 +82,115 @@ static size_t bracket_symbol(const char *s, int *is_h)
 	return 0;
 }
 
-/* A quick syntax pass of our own, before Open Babel: Open Babel 3.1.1
- * silently accepts an unclosed branch ("CC(C") and rejects some input
- * without giving any reason, so the common mistakes are named here, with
- * their position. Also counts heavy atoms for the size limit. One loop,
- * no recursion: the input length cannot grow the stack. */
-static int check_syntax(const char *s, size_t *heavy, char *why, size_t why_size)
+/* What the syntax pass learns besides errors: the heavy atoms in SMILES
+ * order, with the ones written aromatic (lower case) and their positions. */
+typedef struct syntax_info {
+	size_t heavy;
+	unsigned char *aromatic; /* per heavy atom, 1 when written lower case */
+	size_t *pos;             /* per heavy atom, 1-based position in the text */
+	size_t cap;
+} syntax_info;
+
+static int note_atom(syntax_info *si, int is_h, int arom, size_t pos)
 {
-	size_t depth = 0, first_open = 0;
+	if (is_h)
+		return IRR_OK;
+	if (si->heavy == si->cap) {
+		size_t ncap = si->cap ? 2 * si->cap : 64;
+		unsigned char *a = realloc(si->aromatic, ncap);
+		if (!a)
+			return IRR_ENOMEM;
+		si->aromatic = a;
+		size_t *p = realloc(si->pos, ncap * sizeof *p);
+		if (!p)
+			return IRR_ENOMEM;
+		si->pos = p;
+		si->cap = ncap;
+	}
+	si->aromatic[si->heavy] = (unsigned char)arom;
+	si->pos[si->heavy] = pos;
+	si->heavy++;
+	return IRR_OK;
+}
+
+/* The inside of a bracket atom, after the element symbol: chirality,
+ * hydrogen count, charge, atom class, in that order (OpenSMILES). Returns
+ * NULL when well formed, else what is wrong. */
+static const char *bracket_tail_problem(const char *p, const char *close)
+{
+	if (p < close && *p == '@') {
+		p++;
+		if (p < close && *p == '@')
+			p++;
+		else if (p + 1 < close && p[0] >= 'A' && p[0] <= 'Z' && p[1] >= 'A' && p[1] <= 'Z') {
+			p += 2; /* @TH1, @SP2, @OH12 ... */
+			while (p < close && *p >= '0' && *p <= '9')
+				p++;
+		}
+		if (p < close && *p == '@')
+			return "bad stereo (chirality) mark";
+	}
+	if (p < close && *p == 'H') {
+		p++;
+		while (p < close && *p >= '0' && *p <= '9')
+			p++;
+	}
+	if (p < close && (*p == '+' || *p == '-')) {
+		char sign = *p++;
+		if (p < close && *p >= '0' && *p <= '9') {
+			while (p < close && *p >= '0' && *p <= '9')
+				p++;
+		} else {
+			while (p < close && *p == sign)
+				p++;
+		}
+		if (p < close && (*p == '+' || *p == '-'))
+			return "charge given more than once";
+	}
+	if (p < close && *p == ':') {
+		p++;
+		if (p == close || *p < '0' || *p > '9')
+			return "atom class ':' needs a number";
+		while (p < close && *p >= '0' && *p <= '9')
+			p++;
+	}
+	if (p == close)
+		return NULL;
+	if (*p == '@')
+		return "stereo (chirality) mark out of place";
+	if (*p == 'H')
+		return "hydrogen count out of place";
+	if (*p == '+' || *p == '-')
+		return "charge out of place";
+	return "unexpected text";
+}
+
+enum tok { T_START, T_ATOM, T_RING, T_BOND, T_OPEN, T_CLOSE, T_DOT };
+
+/* A syntax pass of our own, before Open Babel: Open Babel 3.1.1 silently
+ * accepts many malformed strings ("CC(C", "C=", "CN()C", "OC(=)O", a
+ * trailing '.') and rejects others without a reason, so the grammar of
+ * OpenSMILES (atoms, bonds, branches, ring bonds, dots) is checked here,
+ * naming the position. One loop, no recursion: the input length cannot
+ * grow the stack. */
+static int check_syntax(const char *s, syntax_info *si, char *why, size_t why_size)
+{
+	size_t depth = 0;
 	size_t *opens = NULL; /* positions of unclosed '(' (a stack) */
 	size_t cap = 0;
 	int rc = IRR_OK;
-	*heavy = 0;
+	enum tok prev = T_START;
+#define FAIL(...) do { snprintf(why, why_size, __VA_ARGS__); rc = IRR_EINPUT; goto done; } while (0)
 	for (size_t i = 0; s[i]; i++) {
 		unsigned char c = (unsigned char)s[i];
-		if (c <= ' ' || c >= 127) {
-			snprintf(why, why_size, "%s at position %zu",
-			         c == ' ' || c == '\t' ? "blank inside the SMILES" :
-			         c >= 127 ? "non-ASCII character" : "control character", i + 1);
-			rc = IRR_EINPUT;
-			goto done;
-		}
+		size_t at = i + 1;
+		if (c <= ' ' || c >= 127)
+			FAIL("%s at position %zu",
+			     c == ' ' || c == '\t' ? "blank inside the SMILES" :
+			     c >= 127 ? "non-ASCII character" : "control character", at);
 		if (c == '(') {
+			if (prev != T_ATOM && prev != T_RING && prev != T_CLOSE)
+				FAIL("branch '(' at position %zu does not follow an atom", at);
 			if (depth == cap) {
 				size_t ncap = cap ? 2 * cap : 16;
 				size_t *n = realloc(opens, ncap * sizeof *n);
@@ -111,62 +202,81 @@ static int check_syntax(const char *s, size_t *heavy, char *why, size_t why_size
 				cap = ncap;
 			}
 			opens[depth++] = i;
+			prev = T_OPEN;
 		} else if (c == ')') {
-			if (depth == 0) {
-				snprintf(why, why_size, "unbalanced ')' at position %zu (no branch open)", i + 1);
-				rc = IRR_EINPUT;
-				goto done;
-			}
+			if (depth == 0)
+				FAIL("unbalanced ')' at position %zu (no branch open)", at);
+			if (prev == T_OPEN)
+				FAIL("empty branch '()' at position %zu", at - 1);
+			if (prev == T_BOND || prev == T_DOT)
+				FAIL("'%c' at position %zu has no atom after it", s[i - 1], at - 1);
 			depth--;
+			prev = T_CLOSE;
 		} else if (c == '[') {
 			const char *close = strchr(s + i, ']');
+			const char *open2 = strchr(s + i + 1, '[');
 			size_t j = i + 1;
-			int is_h;
-			if (!close) {
-				snprintf(why, why_size, "unclosed '[' at position %zu", i + 1);
-				rc = IRR_EINPUT;
-				goto done;
-			}
+			int is_h, arom;
+			if (!close || (open2 && open2 < close))
+				FAIL("unclosed '[' at position %zu", at);
 			while (s[j] >= '0' && s[j] <= '9')
 				j++;
-			size_t n = bracket_symbol(s + j, &is_h);
+			size_t n = bracket_symbol(s + j, &is_h, &arom);
 			if (n == 0) {
 				size_t len = 0;
 				while (s + j + len < close && len < 8)
 					len++;
-				snprintf(why, why_size, "unknown element '%.*s' at position %zu",
-				         (int)len, s + j, j + 1);
-				rc = IRR_EINPUT;
-				goto done;
+				FAIL("unknown element '%.*s' at position %zu", (int)len, s + j, j + 1);
 			}
-			if (!is_h)
-				(*heavy)++;
+			const char *bad = bracket_tail_problem(s + j + n, close);
+			if (bad)
+				FAIL("malformed bracket atom '%.*s' at position %zu: %s",
+				     (int)(close - (s + i) + 1), s + i, at, bad);
+			if ((rc = note_atom(si, is_h, arom, at)) != IRR_OK)
+				goto done;
 			i = (size_t)(close - s);
+			prev = T_ATOM;
 		} else if (c == ']') {
-			snprintf(why, why_size, "unbalanced ']' at position %zu", i + 1);
-			rc = IRR_EINPUT;
-			goto done;
-		} else if ((c >= 'A' && c <= 'Z') || (c >= 'a' && c <= 'z')) {
+			FAIL("unbalanced ']' at position %zu", at);
+		} else if ((c >= 'A' && c <= 'Z') || (c >= 'a' && c <= 'z') || c == '*') {
 			/* Outside brackets only the organic subset may appear. */
-			if ((c == 'C' && s[i + 1] == 'l') || (c == 'B' && s[i + 1] == 'r')) {
+			if ((c == 'C' && s[i + 1] == 'l') || (c == 'B' && s[i + 1] == 'r'))
 				i++;
-			} else if (!strchr("BCNOPSFIbcnops", c)) {
-				snprintf(why, why_size, "unknown element or stray letter '%c' at position %zu "
-				         "(other elements need brackets, e.g. [Na+])", c, i + 1);
-				rc = IRR_EINPUT;
+			else if (c != '*' && !strchr("BCNOPSFIbcnops", c))
+				FAIL("unknown element or stray letter '%c' at position %zu "
+				     "(other elements need brackets, e.g. [Na+])", c, at);
+			if ((rc = note_atom(si, 0, c >= 'a' && c <= 'z', at)) != IRR_OK)
 				goto done;
-			}
-			(*heavy)++;
-		} else if (c == '*') {
-			(*heavy)++;
+			prev = T_ATOM;
+		} else if (c >= '0' && c <= '9') {
+			if (prev != T_ATOM && prev != T_RING && prev != T_BOND)
+				FAIL("ring bond '%c' at position %zu does not follow an atom", c, at);
+			prev = T_RING;
+		} else if (c == '%') {
+			if (!(s[i + 1] >= '0' && s[i + 1] <= '9' && s[i + 2] >= '0' && s[i + 2] <= '9'))
+				FAIL("'%%' at position %zu needs two digits", at);
+			if (prev != T_ATOM && prev != T_RING && prev != T_BOND)
+				FAIL("ring bond '%%%c%c' at position %zu does not follow an atom", s[i + 1],
+				     s[i + 2], at);
+			i += 2;
+			prev = T_RING;
+		} else if (strchr("-=#$:/\\", c)) {
+			if (prev != T_ATOM && prev != T_RING && prev != T_CLOSE && prev != T_OPEN)
+				FAIL("bond '%c' at position %zu does not follow an atom", c, at);
+			prev = T_BOND;
+		} else if (c == '.') {
+			if (prev != T_ATOM && prev != T_RING && prev != T_CLOSE)
+				FAIL("'.' at position %zu does not follow an atom", at);
+			prev = T_DOT;
+		} else {
+			FAIL("unexpected character '%c' at position %zu", c, at);
 		}
 	}
-	if (depth > 0) {
-		first_open = opens[depth - 1];
-		snprintf(why, why_size, "unbalanced '(' at position %zu (branch never closed)",
-		         first_open + 1);
-		rc = IRR_EINPUT;
-	}
+	if (depth > 0)
+		FAIL("unbalanced '(' at position %zu (branch never closed)", opens[depth - 1] + 1);
+	if (prev == T_BOND || prev == T_DOT)
+		FAIL("the SMILES ends with '%c', which needs an atom after it", s[strlen(s) - 1]);
+#undef FAIL
 done:
 	free(opens);
 	return rc;
@@ -369,9 +479,11 @@ int irr_molecule_from_smiles(irr_molecule **out, const char *smiles, const char 
 	irr_obshim_mol *ob = NULL;
 	const char *file = name ? name : "SMILES";
 	size_t heavy = 0, len;
+	syntax_info si;
 	int rc;
 
 	memset(&g, 0, sizeof g);
+	memset(&si, 0, sizeof si);
 	*out = NULL;
 	if (!smiles)
 		return irr_error_set(err, IRR_EINPUT, file, 0, "no SMILES given");
@@ -397,9 +509,10 @@ int irr_molecule_from_smiles(irr_molecule **out, const char *smiles, const char 
 	memcpy(m->smiles, smiles, len);
 	m->smiles[len] = '\0';
 
-	rc = check_syntax(m->smiles, &heavy, why, sizeof why);
+	rc = check_syntax(m->smiles, &si, why, sizeof why);
+	heavy = si.heavy;
 	if (rc == IRR_OK && heavy > IRR_MAX_HEAVY_ATOMS) {
-		snprintf(why, sizeof why, "about %zu heavy atoms, more than the limit of %d",
+		snprintf(why, sizeof why, "%zu heavy atoms, more than the limit of %d",
 		         heavy, IRR_MAX_HEAVY_ATOMS);
 		rc = IRR_ELIMIT;
 	}
@@ -438,13 +551,30 @@ int irr_molecule_from_smiles(irr_molecule **out, const char *smiles, const char 
 		rc = irr_error_set(err, IRR_ENOMEM, file, 0, "out of memory");
 		goto fail;
 	}
+	/* Lower case means "aromatic ring atom": outside a ring it is an error
+	 * (Open Babel quietly makes such an atom aliphatic). Heavy atoms keep
+	 * their SMILES order, so the syntax pass's list lines up. */
+	if (si.heavy == m->natoms) {
+		for (size_t i = 0; i < m->natoms; i++)
+			if (si.aromatic[i] && !m->atoms[i].in_ring) {
+				rc = irr_error_set(err, IRR_EINPUT, file, 0,
+				                   "cannot read \"%.60s%s\": atom at position %zu is written "
+				                   "aromatic (lower case) but is not in a ring",
+				                   m->smiles, len > 60 ? "..." : "", si.pos[i]);
+				goto fail;
+			}
+	}
 	assign_ring_sizes(m);
 	assign_hybridization(m);
 	irr_obshim__graph_release(&g);
+	free(si.aromatic);
+	free(si.pos);
 	*out = m;
 	return IRR_OK;
 
 fail:
+	free(si.aromatic);
+	free(si.pos);
 	irr_obshim__graph_release(&g);
 	irr_obshim__mol_free(ob);
 	irr_molecule_free(m);

@@ -155,6 +155,8 @@ static void cis_trans_from_smiles(void **state)
 	m = parse_ok("F/C=C\\F");
 	assert_int_equal(double_bond_stereo(m), 1);
 	irr_molecule_free(m);
+	/* Nitromethane in the old pentavalent spelling is accepted. */
+	irr_molecule_free(parse_ok("CN(=O)=O"));
 	m = parse_ok("FC=CF");
 	assert_int_equal(double_bond_stereo(m), 0);
 	irr_molecule_free(m);
@@ -214,6 +216,19 @@ static void bad_smiles_are_input_errors(void **state)
 		{"CC O", "blank"},
 		{"c1cccc1", "kekulize"},      /* Open Babel only warns about this one */
 		{"c1ccccc1c", "kekulize"},
+		/* Open Babel 3.1.1 reads all of these without a word. */
+		{"C=", "ends with '='"},
+		{"OC(=)O", "'=' at position 4 has no atom after it"},
+		{"CN()C", "empty branch"},
+		{"CC.", "ends with '.'"},
+		{"C..C", "'.' at position 3"},
+		{"=CC", "does not follow an atom"},
+		{"C(C)1CC1", "ring bond '1' at position 5"},
+		{"CoC", "aromatic (lower case) but is not in a ring"},
+		{"[C+-+-]", "charge given more than once"},
+		{"[C@@@@H](F)(Cl)Br", "stereo"},
+		{"FCCFC", "valence 2, more than 1"},       /* divalent fluorine */
+		{"C(C)(C)(C)(C)C", "valence 5, more than 4"}, /* pentavalent carbon */
 		/* A hydrogen in a ring or chain (found by fuzzing): valence error. */
 		{"c1c[2H]cc2[nH]ccc2c1", "hydrogen atom 3 has 2 bonds"},
 		{"C[H]C", "has 2 bonds"},
