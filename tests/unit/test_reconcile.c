@@ -658,6 +658,25 @@ static void json_is_deterministic_and_complete(void **state)
 	irr_check_free(c2);
 }
 
+/* An azide in the structure brings the perception stage's safety caution
+ * into the result, after the evidence caution (brief: cautions for azide,
+ * diazo, peroxide). The band list is benzoic acid's, so the verdict is
+ * inconsistent; the cautions do not depend on it. */
+static void safety_cautions_reach_the_result(void **state)
+{
+	irr_check *c;
+	int azide = 0;
+	(void)state;
+	c = run_check("CCCCN=[N+]=[N-]", NULL, peaks_from(benzoic_acid), IRR_SAMPLING_TRANSMISSION, NULL, NULL);
+	assert_true(irr_check_caution_count(c) >= 2);
+	assert_non_null(strstr(irr_check_caution(c, 0), "evidence, never proof"));
+	for (size_t i = 1; i < irr_check_caution_count(c); i++)
+		if (strstr(irr_check_caution(c, i), "azide"))
+			azide = 1;
+	assert_true(azide);
+	irr_check_free(c);
+}
+
 static void solvent_library(void **state)
 {
 	irr_solvent_library *lib = NULL;
@@ -712,6 +731,7 @@ int main(void)
 		cmocka_unit_test(mid_triple_bond_band_prefers_nitrile),
 		cmocka_unit_test(phase_moves_the_oh_window),
 		cmocka_unit_test(json_is_deterministic_and_complete),
+		cmocka_unit_test(safety_cautions_reach_the_result),
 		cmocka_unit_test(solvent_library),
 		cmocka_unit_test(bad_inputs_fail_cleanly),
 	};
