@@ -703,7 +703,7 @@ static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *er
 		if (hi > 10.0 && hi <= 200.0 && lo >= -10.0 && pos > 0.5) {
 			u = IRR_Y_PERCENT_T;
 			rc = irr_spectrum__warn(s, "%s: read as percent transmittance (values up to %.4g, baseline near the top)", what, hi);
-		} else if (hi <= 1.5 && pos > 0.5) {
+		} else if (hi <= 2.0 && pos > 0.5) {
 			u = IRR_Y_TRANSMITTANCE;
 			rc = irr_spectrum__warn(s, "%s: read as transmittance (values 0-1, baseline near the top)", what);
 		} else {

@@ -444,6 +444,48 @@ static void unsaturated_and_detected_on_real_spectra(void **state)
 	irr_spectrum_free(s);
 }
 
+/* Every shared file with its units hidden: the detection must give what
+ * MANIFEST.tsv records (column y_units: "TRANSMITTANCE (fraction 0-1)",
+ * "TRANSMITTANCE (values in %, 0-100)" or "ABSORBANCE"). */
+static void units_detected_on_every_shared_file(void **state)
+{
+	char path[1200], line[4096];
+	FILE *f;
+	int files = 0;
+	(void)state;
+	NEED_REFDIR();
+	snprintf(path, sizeof path, "%s/MANIFEST.tsv", refdir());
+	f = fopen(path, "r");
+	assert_non_null(f);
+	assert_non_null(fgets(line, sizeof line, f));
+	while (fgets(line, sizeof line, f)) {
+		char *col[6], *p = line;
+		int nc = 0;
+		irr_spectrum *s, *u;
+		const char *want;
+		while (nc < 6 && p) {
+			col[nc++] = p;
+			p = strchr(p, '\t');
+			if (p)
+				*p++ = '\0';
+		}
+		assert_int_equal(nc, 6);
+		want = strstr(col[4], "ABSORBANCE") ? "read as absorbance"
+		       : strstr(col[4], "%") ? "read as percent transmittance"
+		                             : "read as transmittance";
+		s = read_ref(col[0]);
+		u = make(irr_spectrum_x(s), irr_spectrum_y(s), irr_spectrum_points(s), IRR_Y_UNKNOWN);
+		normalise_ok(u);
+		if (!has_warning(u, want))
+			fail_msg("%s: expected '%s', got '%s'", col[0], want, irr_spectrum_warning(u, 0));
+		irr_spectrum_free(s);
+		irr_spectrum_free(u);
+		files++;
+	}
+	fclose(f);
+	assert_int_equal(files, 36);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -457,6 +499,7 @@ int main(void)
 		cmocka_unit_test(indene_clipped_at_three),
 		cmocka_unit_test(acetophenone_carbonyl_saturated),
 		cmocka_unit_test(unsaturated_and_detected_on_real_spectra),
+		cmocka_unit_test(units_detected_on_every_shared_file),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
