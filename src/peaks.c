@@ -43,7 +43,7 @@
 #define DEF_MIN_REL 0.01
 #define DEF_STRONG 0.33
 #define DEF_MEDIUM 0.10
-#define DEF_BROAD 60.0
+#define DEF_BROAD 75.0
 /* Auto smoothing window (cm-1): narrow enough for condensed-phase bands of
  * 6-8 cm-1 FWHM (polystyrene's aromatic C-H and ring bands). */
 #define AUTO_SMOOTH_CM 7.0

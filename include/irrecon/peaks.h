@@ -39,9 +39,10 @@ typedef struct irr_peak {
  *     saturated band counts as at least as strong as anything measured):
  *     strong >= 0.33, medium >= 0.10, weak below (our choice, in line with
  *     the usual s/m/w reading of a spectrum; common practice);
- *   broad_cm 60 (condensed-phase C-H, C=O and ring bands are 5-30 cm-1
- *     wide; hydrogen-bonded O-H and N-H, carboxylic O-H, ammonium 100 and
- *     more; common practice); shoulders on; baseline on (rubber band).
+ *   broad_cm 75 (condensed-phase C-H, C=O and ring bands are 5-30 cm-1
+ *     wide, more where neighbours overlap and widths come out high;
+ *     hydrogen-bonded O-H and N-H, carboxylic O-H, ammonium 100 and more;
+ *     common practice); shoulders on; baseline on (rubber band).
  * Noise is the robust sd of the raw trace (irr_peaklist_noise), measured
  * per block of 96 points so that noisier stretches get their own level. */
 typedef struct irr_peak_options {

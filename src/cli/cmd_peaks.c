@@ -37,7 +37,7 @@ static const opt_def opts[] = {
 	{"--min-rel", "F", "drop bands under F of the strongest (default 0.01)"},
 	{"--strong", "F", "relative height for 'strong' (default 0.33)"},
 	{"--medium", "F", "relative height for 'medium' (default 0.10)"},
-	{"--broad", "CM", "FWHM at or above which a band is broad (default 60)"},
+	{"--broad", "CM", "FWHM at or above which a band is broad (default 75)"},
 	{"--no-shoulders", NULL, "do not look for shoulders"},
 	{"--shoulder-factor", "X", "shoulders need X x the maxima's S/N (default 1.6)"},
 	{"--shoulder-depth", "F", "and a lobe F as deep as the nearest maximum's (0.10)"},

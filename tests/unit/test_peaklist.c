@@ -63,7 +63,7 @@ static void csv_with_classes_header_and_range(void **state)
 	assert_true(irr_peaklist_get(pl, 6)->position == 698.0);
 	assert_int_equal(irr_peaklist_get(pl, 6)->intensity, IRR_INT_STRONG);
 	assert_int_equal(irr_peaklist_get(pl, 2)->intensity, IRR_INT_MEDIUM); /* 1601,m */
-	/* Width given: FWHM and extent; broad from the default 60 cm-1. */
+	/* Width given: FWHM and extent; broad from the default 75 cm-1. */
 	assert_true(irr_peaklist_get(pl, 1)->fwhm == 36.0);
 	assert_true(fabs(irr_peaklist_get(pl, 1)->low - 2905.0) < 1e-9);
 	assert_false(irr_peaklist_get(pl, 1)->broad);
