@@ -1561,6 +1561,19 @@ int irr_check_run(irr_check *c, irr_error *err)
 				          decisive_strength(c, p) >= DECISIVE_REL && p->position >= 1500;
 				if ((pass == 0) != (dec != 0))
 					continue;
+				/* A shoulder or second top of a stronger unexplained band
+				 * is listed with it, not as a reason of its own. */
+				{
+					int inside = 0;
+					for (size_t b2 = 0; b2 < no && !inside; b2++) {
+						const irr_peak *q = c->obs[order[b2]].peak;
+						if (b2 != a && q->height > p->height && q->high > q->low &&
+						    p->position > q->low && p->position < q->high)
+							inside = 1;
+					}
+					if (inside)
+						continue;
+				}
 				if (pass == 1 && p->intensity == IRR_INT_WEAK)
 					continue;
 				if (o->ncandidates) {
@@ -1568,7 +1581,7 @@ int irr_check_run(irr_check *c, irr_error *err)
 					snprintf(cl + n, sizeof cl - n, " (could be: ");
 					for (size_t q = 0; q < o->ncandidates; q++) {
 						n = strlen(cl);
-						snprintf(cl + n, sizeof cl - n, "%s%s", q ? ", " : "", o->candidates[q]);
+						snprintf(cl + n, sizeof cl - n, "%s%s", q ? "; " : "", o->candidates[q]);
 					}
 					n = strlen(cl);
 					snprintf(cl + n, sizeof cl - n, ")");

@@ -233,7 +233,7 @@ int irr_report_text(char **out, const irr_check *c)
 					k = (size_t)snprintf(text, sizeof text, "could be:");
 					for (size_t q = 0; q < o->ncandidates && k < sizeof text; q++)
 						k += (size_t)snprintf(text + k, sizeof text - k, "%s %s",
-						                      q ? "," : "", o->candidates[q]);
+						                      q ? ";" : "", o->candidates[q]);
 				} else {
 					snprintf(text, sizeof text, "no group in the tables has a band here");
 				}
