@@ -15,7 +15,7 @@ fi
 B=${FUZZ_BUILD:-build-fuzz}
 corpus=$B/smoke-corpus
 rm -rf "$corpus"
-FUZZ_BUILD=$B FUZZ_CORPUS=$corpus ./tools/fuzz -t "$SECS"
+FUZZ_BUILD=$B FUZZ_CORPUS=$corpus ./tools/fuzz -j 2 -t "$SECS"
 rc=$?
 rm -rf "$corpus"
 case $rc in
