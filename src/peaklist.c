@@ -4,7 +4,8 @@
  * CSV: one band per line; ',', ';', tab or blanks between fields (the first
  * data line decides); '#' starts a comment; an optional header line (first
  * field not a number); intensity a number (bigger = stronger: absorbance or
- * any relative scale) or a class (s, m, w, vs, vw, strong, medium, weak);
+ * any relative scale; transmittance when the header names the column so)
+ * or a class (s, m, w, vs, vw, strong, medium, weak);
  * width the FWHM in cm-1. The measured range is a line "range,LO,HI" or a
  * comment "# range: LO HI" (or LO-HI); 400-4000 cm-1 otherwise.
  *
@@ -226,7 +227,7 @@ static int read_csv(irr_peaklist *pl, char *data, size_t len, const char *name,
                     long **lines, size_t *lcap, irr_error *err)
 {
 	char delim = 0;
-	int seen_header = 0;
+	int seen_header = 0, trans = 0;
 	long line = 0;
 	char *p = data, *endp = data + len;
 	int rc;
@@ -290,6 +291,10 @@ static int read_csv(irr_peaklist *pl, char *data, size_t len, const char *name,
 			if (!whole_number(f[0], &pos)) {
 				if (!seen_header && pl->count == 0) {
 					seen_header = 1;
+					/* A transmittance column (lower = stronger) is
+					 * converted to absorbance at the end. */
+					if (nf >= 2 && (strcasestr(f[1], "%t") || strcasestr(f[1], "transm")))
+						trans = 1;
 					continue;
 				}
 				return irr_error_set(err, IRR_EINPUT, name, line,
@@ -308,8 +313,29 @@ static int read_csv(irr_peaklist *pl, char *data, size_t len, const char *name,
 			if (nf == 3 && f[2][0] && (!whole_number(f[2], &width) || width <= 0.0))
 				return irr_error_set(err, IRR_EINPUT, name, line,
 				                     "width '%.40s' is not a positive number (FWHM in cm-1)", f[2]);
+			if (trans && has_int == 1 && !(inum > 0.0))
+				return irr_error_set(err, IRR_EINPUT, name, line,
+				                     "transmittance %g is not above 0", inum);
 			if ((rc = add_peak(pl, lines, lcap, line, pos, has_int, inum, icls, width, name, err)) != IRR_OK)
 				return rc;
+		}
+	}
+	if (trans) {
+		/* Transmittance to absorbance, A = -log10 T; percent when any
+		 * value exceeds 1.5 (a fraction cannot). */
+		double scale = 1.0;
+		for (size_t i = 0; i < pl->count; i++)
+			if (pl->peaks[i].height > 1.5)
+				scale = 0.01;
+		for (size_t i = 0; i < pl->count; i++) {
+			irr_peak *q = &pl->peaks[i];
+			if (q->height > 0.0) {
+				double t = q->height * scale;
+				if (t > 1.0)
+					return irr_error_set(err, IRR_EINPUT, name, (*lines)[i],
+					                     "transmittance %g is above 100 %%", q->height);
+				q->height = -log10(t);
+			}
 		}
 	}
 	return IRR_OK;

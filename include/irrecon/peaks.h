@@ -109,7 +109,10 @@ int irr_peaks_pick(irr_peaklist **out, const irr_spectrum *s,
  * "width" or "fwhm", "height"; or an object {"range": [lo, hi], "peaks":
  * [...]}; irrecon's own irrecon.peaks/1 output reads back).
  * Intensity: a number is a band height, bigger = stronger (absorbance or
- * any relative scale; not %T), classed like picked peaks; a class name
+ * any relative scale), classed like picked peaks; in a CSV whose header
+ * names the column transmittance or %T, numbers are transmittance (a
+ * fraction, or percent when any exceeds 1.5) and become A = -log10 T; a
+ * class name
  * (s, m, w, vs, vw, strong, medium, weak, variable) sets the class, with
  * height 0 and rel_height 1.0 / 0.2 / 0.05 (strong / medium / weak); no
  * intensity at all leaves IRR_INT_NONE (unknown). Width is the FWHM in

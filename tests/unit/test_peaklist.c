@@ -152,6 +152,27 @@ static void from_memory_and_round_trip_forms(void **state)
 	irr_peaklist_free(pl);
 }
 
+static void transmittance_column_becomes_absorbance(void **state)
+{
+	(void)state;
+	/* A = -log10 T (Beer-Lambert; definition): 10 %T -> 1, 50 %T -> 0.301. */
+	const char *a = "cm-1,%T\n1601,50\n1493,10\n";
+	const char *b = "wavenumber;transmittance\n1601;0.5\n1493;0.1\n";
+	const char *bad = "cm-1,%T\n1601,120\n";
+	irr_peaklist *pl = NULL;
+	irr_error err;
+	for (int k = 0; k < 2; k++) {
+		const char *t = k ? b : a;
+		assert_int_equal(irr_peaklist_read_memory(&pl, t, strlen(t), "t", &err), IRR_OK);
+		assert_true(fabs(irr_peaklist_get(pl, 0)->height - 0.30103) < 1e-5);
+		assert_true(fabs(irr_peaklist_get(pl, 1)->height - 1.0) < 1e-12);
+		assert_int_equal(irr_peaklist_get(pl, 1)->intensity, IRR_INT_STRONG);
+		irr_peaklist_free(pl);
+	}
+	assert_int_equal(irr_peaklist_read_memory(&pl, bad, strlen(bad), "bad", &err), IRR_EINPUT);
+	assert_int_equal(err.line, 2);
+}
+
 static void bad_lists_name_file_and_line(void **state)
 {
 	(void)state;
@@ -195,6 +216,7 @@ int main(void)
 		cmocka_unit_test(tsv_with_numeric_heights),
 		cmocka_unit_test(json_object_and_array),
 		cmocka_unit_test(from_memory_and_round_trip_forms),
+		cmocka_unit_test(transmittance_column_becomes_absorbance),
 		cmocka_unit_test(bad_lists_name_file_and_line),
 		cmocka_unit_test(bad_memory_inputs),
 	};
