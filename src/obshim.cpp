@@ -213,21 +213,44 @@ std::string valence_problem(OBAtom *a)
 	int z = static_cast<int>(a->GetAtomicNum());
 	int q = a->GetFormalCharge();
 	int lim = max_valence(z, q);
+	if ((z == 9 || z == 17 || z == 35 || z == 53) && q == -1 &&
+	    a->GetExplicitValence() + a->GetImplicitHCount() > 0)
+		return std::string("atom ") + std::to_string(a->GetIdx()) +
+		       " is a halide ion with a bond (write the ion as its own component)";
+	if ((z == 17 || z == 35 || z == 53) && q == 0) {
+		/* Halogens: one bond, or the odd valences of oxyhalogen and
+		 * hypervalent iodine compounds whose extra bonds go to O or F. */
+		int v = static_cast<int>(a->GetExplicitValence() + a->GetImplicitHCount());
+		int other = static_cast<int>(a->GetImplicitHCount());
+		FOR_BONDS_OF_ATOM(b, a) {
+			int zn = static_cast<int>(b->GetNbrAtom(a)->GetAtomicNum());
+			if (zn != 8 && zn != 9)
+				other += static_cast<int>(b->GetBondOrder());
+		}
+		if (v == 1 || (v % 2 == 1 && v <= 7 && other <= 1))
+			return "";
+		return std::string("atom ") + std::to_string(a->GetIdx()) + " (" +
+		       (z == 17 ? "Cl" : z == 35 ? "Br" : "I") + ") has valence " + std::to_string(v) +
+		       "; a halogen takes one bond (more only to O or F)";
+	}
 	if (lim < 0)
 		return "";
 	int v = static_cast<int>(a->GetExplicitValence() + a->GetImplicitHCount());
 	if (v <= lim)
 		return "";
-	if (z == 7 && q == 0 && v == 5) {
+	if (z == 7 && q == 0 && v == 5 && a->GetImplicitHCount() == 0) {
 		FOR_BONDS_OF_ATOM(b, a)
 			if (b->GetBondOrder() == 2 && b->GetNbrAtom(a)->GetAtomicNum() == 8)
 				return "";
 	}
 	static const char *const sym[] = {"", "H", "He", "Li", "Be", "B", "C", "N", "O", "F",
 	                                  "Ne", "Na", "Mg", "Al", "Si"};
+	unsigned imp = a->GetImplicitHCount();
 	return std::string("atom ") + std::to_string(a->GetIdx()) + " (" + sym[z] +
 	       (q ? (q > 0 ? ", charge +" + std::to_string(q) : ", charge " + std::to_string(q)) : "") +
-	       ") has valence " + std::to_string(v) + ", more than " + std::to_string(lim);
+	       ") has valence " + std::to_string(v) +
+	       (imp ? " (with " + std::to_string(imp) + " implied H)" : std::string()) +
+	       ", more than " + std::to_string(lim);
 }
 
 int heavy_neighbour_other_than(OBAtom *a, OBAtom *not_this)

@@ -89,7 +89,27 @@ typedef struct syntax_info {
 	unsigned char *aromatic; /* per heavy atom, 1 when written lower case */
 	size_t *pos;             /* per heavy atom, 1-based position in the text */
 	size_t cap;
+	/* every atom (hydrogens too): the atom it hangs on in the chain, -1 */
+	long natoms;
+	long *pred;
+	size_t pcap;
 } syntax_info;
+
+/* Records a new atom bonded (through the chain) to `cur`; returns its
+ * index or -1 when out of memory. */
+static long chain_atom(syntax_info *si, long cur)
+{
+	if ((size_t)si->natoms == si->pcap) {
+		size_t ncap = si->pcap ? 2 * si->pcap : 64;
+		long *p = realloc(si->pred, ncap * sizeof *p);
+		if (!p)
+			return -1;
+		si->pred = p;
+		si->pcap = ncap;
+	}
+	si->pred[si->natoms] = cur;
+	return si->natoms++;
+}
 
 static int note_atom(syntax_info *si, int is_h, int arom, size_t pos)
 {
@@ -177,9 +197,14 @@ static int check_syntax(const char *s, syntax_info *si, char *why, size_t why_si
 {
 	size_t depth = 0;
 	size_t *opens = NULL; /* positions of unclosed '(' (a stack) */
+	long *branch_atom = NULL; /* the atom each open branch hangs on */
 	size_t cap = 0;
 	int rc = IRR_OK;
-	enum tok prev = T_START;
+	enum tok prev = T_START, before_bond = T_START;
+	long cur = -1;            /* the atom the next one bonds to */
+	long ring_open[100];      /* ring-bond number -> atom that opened it */
+	for (int k = 0; k < 100; k++)
+		ring_open[k] = -1;
 #define FAIL(...) do { snprintf(why, why_size, __VA_ARGS__); rc = IRR_EINPUT; goto done; } while (0)
 	for (size_t i = 0; s[i]; i++) {
 		unsigned char c = (unsigned char)s[i];
@@ -194,13 +219,18 @@ static int check_syntax(const char *s, syntax_info *si, char *why, size_t why_si
 			if (depth == cap) {
 				size_t ncap = cap ? 2 * cap : 16;
 				size_t *n = realloc(opens, ncap * sizeof *n);
-				if (!n) {
+				long *b = realloc(branch_atom, ncap * sizeof *b);
+				if (n)
+					opens = n;
+				if (b)
+					branch_atom = b;
+				if (!n || !b) {
 					rc = IRR_ENOMEM;
 					goto done;
 				}
-				opens = n;
 				cap = ncap;
 			}
+			branch_atom[depth] = cur;
 			opens[depth++] = i;
 			prev = T_OPEN;
 		} else if (c == ')') {
@@ -211,6 +241,7 @@ static int check_syntax(const char *s, syntax_info *si, char *why, size_t why_si
 			if (prev == T_BOND || prev == T_DOT)
 				FAIL("'%c' at position %zu has no atom after it", s[i - 1], at - 1);
 			depth--;
+			cur = branch_atom[depth];
 			prev = T_CLOSE;
 		} else if (c == '[') {
 			const char *close = strchr(s + i, ']');
@@ -234,6 +265,10 @@ static int check_syntax(const char *s, syntax_info *si, char *why, size_t why_si
 				     (int)(close - (s + i) + 1), s + i, at, bad);
 			if ((rc = note_atom(si, is_h, arom, at)) != IRR_OK)
 				goto done;
+			if ((cur = chain_atom(si, prev == T_DOT ? -1 : cur)) < 0) {
+				rc = IRR_ENOMEM;
+				goto done;
+			}
 			i = (size_t)(close - s);
 			prev = T_ATOM;
 		} else if (c == ']') {
@@ -247,22 +282,43 @@ static int check_syntax(const char *s, syntax_info *si, char *why, size_t why_si
 				     "(other elements need brackets, e.g. [Na+])", c, at);
 			if ((rc = note_atom(si, 0, c >= 'a' && c <= 'z', at)) != IRR_OK)
 				goto done;
+			if ((cur = chain_atom(si, prev == T_DOT ? -1 : cur)) < 0) {
+				rc = IRR_ENOMEM;
+				goto done;
+			}
 			prev = T_ATOM;
-		} else if (c >= '0' && c <= '9') {
-			if (prev != T_ATOM && prev != T_RING && prev != T_BOND)
-				FAIL("ring bond '%c' at position %zu does not follow an atom", c, at);
-			prev = T_RING;
-		} else if (c == '%') {
-			if (!(s[i + 1] >= '0' && s[i + 1] <= '9' && s[i + 2] >= '0' && s[i + 2] <= '9'))
-				FAIL("'%%' at position %zu needs two digits", at);
-			if (prev != T_ATOM && prev != T_RING && prev != T_BOND)
-				FAIL("ring bond '%%%c%c' at position %zu does not follow an atom", s[i + 1],
-				     s[i + 2], at);
-			i += 2;
+		} else if ((c >= '0' && c <= '9') || c == '%') {
+			int num;
+			if (c == '%') {
+				if (!(s[i + 1] >= '0' && s[i + 1] <= '9' && s[i + 2] >= '0' && s[i + 2] <= '9'))
+					FAIL("'%%' at position %zu needs two digits", at);
+				num = (s[i + 1] - '0') * 10 + (s[i + 2] - '0');
+			} else {
+				num = c - '0';
+			}
+			if (!(prev == T_ATOM || prev == T_RING ||
+			      (prev == T_BOND && (before_bond == T_ATOM || before_bond == T_RING))))
+				FAIL("ring bond '%.*s' at position %zu does not follow an atom",
+				     c == '%' ? 3 : 1, s + i, at);
+			if (ring_open[num] < 0) {
+				ring_open[num] = cur;
+			} else {
+				long other = ring_open[num];
+				ring_open[num] = -1;
+				if (other == cur)
+					FAIL("ring bond '%.*s' at position %zu joins an atom to itself",
+					     c == '%' ? 3 : 1, s + i, at);
+				if (si->pred[cur] == other || si->pred[other] == cur)
+					FAIL("ring bond '%.*s' at position %zu joins two atoms already bonded",
+					     c == '%' ? 3 : 1, s + i, at);
+			}
+			if (c == '%')
+				i += 2;
 			prev = T_RING;
 		} else if (strchr("-=#$:/\\", c)) {
 			if (prev != T_ATOM && prev != T_RING && prev != T_CLOSE && prev != T_OPEN)
 				FAIL("bond '%c' at position %zu does not follow an atom", c, at);
+			before_bond = prev;
 			prev = T_BOND;
 		} else if (c == '.') {
 			if (prev != T_ATOM && prev != T_RING && prev != T_CLOSE)
@@ -279,6 +335,7 @@ static int check_syntax(const char *s, syntax_info *si, char *why, size_t why_si
 #undef FAIL
 done:
 	free(opens);
+	free(branch_atom);
 	return rc;
 }
 
@@ -569,12 +626,14 @@ int irr_molecule_from_smiles(irr_molecule **out, const char *smiles, const char 
 	irr_obshim__graph_release(&g);
 	free(si.aromatic);
 	free(si.pos);
+	free(si.pred);
 	*out = m;
 	return IRR_OK;
 
 fail:
 	free(si.aromatic);
 	free(si.pos);
+	free(si.pred);
 	irr_obshim__graph_release(&g);
 	irr_obshim__mol_free(ob);
 	irr_molecule_free(m);

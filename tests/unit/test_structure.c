@@ -155,8 +155,15 @@ static void cis_trans_from_smiles(void **state)
 	m = parse_ok("F/C=C\\F");
 	assert_int_equal(double_bond_stereo(m), 1);
 	irr_molecule_free(m);
-	/* Nitromethane in the old pentavalent spelling is accepted. */
+	/* Accepted: nitromethane in the old pentavalent spelling, perchloric
+	 * acid, (diacetoxyiodo)benzene (hypervalent I bonded to O), a ring bond
+	 * across a dot, ring-bond numbers with a bond symbol. */
 	irr_molecule_free(parse_ok("CN(=O)=O"));
+	irr_molecule_free(parse_ok("OCl(=O)(=O)=O"));
+	irr_molecule_free(parse_ok("CC(=O)OI(OC(C)=O)c1ccccc1"));
+	irr_molecule_free(parse_ok("C1.C1"));
+	irr_molecule_free(parse_ok("C=1CCCCC1"));
+	irr_molecule_free(parse_ok("C%10CCCCC%10"));
 	m = parse_ok("FC=CF");
 	assert_int_equal(double_bond_stereo(m), 0);
 	irr_molecule_free(m);
@@ -229,6 +236,12 @@ static void bad_smiles_are_input_errors(void **state)
 		{"[C@@@@H](F)(Cl)Br", "stereo"},
 		{"FCCFC", "valence 2, more than 1"},       /* divalent fluorine */
 		{"C(C)(C)(C)(C)C", "valence 5, more than 4"}, /* pentavalent carbon */
+		{"CN(C)=O", "valence 5 (with 1 implied H)"},
+		{"CClC", "a halogen takes one bond"},
+		{"CC[Cl-]", "halide ion with a bond"},
+		{"O=C1C1", "joins two atoms already bonded"},
+		{"C11", "joins an atom to itself"},
+		{"C1CC(=1)C", "ring bond '1' at position 7"},
 		/* A hydrogen in a ring or chain (found by fuzzing): valence error. */
 		{"c1c[2H]cc2[nH]ccc2c1", "hydrogen atom 3 has 2 bonds"},
 		{"C[H]C", "has 2 bonds"},
