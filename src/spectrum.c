@@ -405,6 +405,17 @@ done:
 	return IRR_OK;
 }
 
+/* Files from classic Mac OS end lines with a lone CR; the JCAMP-DX
+ * reader splits on LF, so such a buffer is turned into LF lines. */
+static void cr_to_lf(char *data, size_t len)
+{
+	if (memchr(data, '\n', len) || !memchr(data, '\r', len))
+		return;
+	for (size_t i = 0; i < len; i++)
+		if (data[i] == '\r')
+			data[i] = '\n';
+}
+
 static int looks_like_jcamp(const char *data, size_t len)
 {
 	size_t i = 0;
@@ -448,8 +459,10 @@ int irr_spectrum_read_memory(irr_spectrum **out, const char *data, size_t len,
 	if (len)
 		memcpy(copy, data, len);
 	copy[len] = '\0';
-	if (looks_like_jcamp(copy, len))
+	if (looks_like_jcamp(copy, len)) {
+		cr_to_lf(copy, len);
 		rc = irr_jcamp__read(out, copy, len, name, o, err);
+	}
 	else
 		rc = irr_csv__read(out, copy, len, name, o, err);
 	free(copy);
@@ -477,8 +490,10 @@ int irr_spectrum_read_file(irr_spectrum **out, const char *path,
 		return rc;
 	if (len && ((z = memchr(buf, '\0', len)) || looks_like_utf16((const unsigned char *)buf, len)))
 		rc = binary_error(buf, len, z ? (size_t)(z - buf) : 0, path, err);
-	else if (looks_like_jcamp(buf, len))
+	else if (looks_like_jcamp(buf, len)) {
+		cr_to_lf(buf, len);
 		rc = irr_jcamp__read(out, buf, len, path, o, err);
+	}
 	else
 		rc = irr_csv__read(out, buf, len, path, o, err);
 	free(buf);
@@ -500,8 +515,10 @@ int irr_jcamp_list_blocks(irr_block_info **out, size_t *count, const char *path,
 	if (!looks_like_jcamp(buf, len))
 		rc = irr_spectrum__fail(err, IRR_EINPUT, path, 1,
 		                   "not a JCAMP-DX file (it does not start with a ##LABEL= record)");
-	else
+	else {
+		cr_to_lf(buf, len);
 		rc = irr_jcamp__list_blocks(out, count, buf, len, path, err);
+	}
 	free(buf);
 	return rc;
 }

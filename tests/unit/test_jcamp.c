@@ -598,6 +598,30 @@ static void header_checks_warn_naming_the_label(void **state)
 	}
 }
 
+/* Line ends: LF, CRLF and the lone CR of classic Mac OS files. */
+static void line_endings(void **state)
+{
+	static const char lf[] =
+	    "##TITLE= ends\n##DATA TYPE= INFRARED SPECTRUM\n##XUNITS= 1/CM\n##YUNITS= ABSORBANCE\n"
+	    "##FIRSTX= 1000\n##LASTX= 1003\n##NPOINTS= 4\n##XYDATA= (X++(Y..Y))\n1000A2J\n1001A3JJ\n1003A5\n##END=\n";
+	char text[sizeof lf * 2];
+	(void)state;
+	for (int mode = 0; mode < 3; mode++) {
+		size_t n = 0;
+		irr_spectrum *s = NULL;
+		irr_error err;
+		for (const char *p = lf; *p; p++) {
+			if (*p == '\n' && mode == 1)
+				text[n++] = '\r';
+			text[n++] = (*p == '\n' && mode == 2) ? '\r' : *p;
+		}
+		assert_int_equal(irr_spectrum_read_memory(&s, text, n, "ends", NULL, &err), IRR_OK);
+		assert_int_equal(irr_spectrum_points(s), 4);
+		assert_true(irr_spectrum_y(s)[0] == 12 && irr_spectrum_y(s)[3] == 15);
+		irr_spectrum_free(s);
+	}
+}
+
 /* ---- other records and compound files ------------------------------------ */
 
 static void xypoints_and_peak_table(void **state)
@@ -850,6 +874,7 @@ int main(void)
 		cmocka_unit_test(e_is_sqz_digit_or_exponent),
 		cmocka_unit_test(dup_after_ycheck_repeats_the_value),
 		cmocka_unit_test(header_checks_warn_naming_the_label),
+		cmocka_unit_test(line_endings),
 		cmocka_unit_test(xypoints_and_peak_table),
 		cmocka_unit_test(link_file_blocks),
 		cmocka_unit_test(bad_input_fails_with_file_and_line),
