@@ -9,6 +9,10 @@
 #include <stdlib.h>
 #include <string.h>
 
+/* Metadata lines allowed before the data (instrument exports write a
+ * dozen or so: sample, date, resolution, scans). */
+#define MAX_HEADER_LINES 100
+
 #define DECIMAL_COMMA_HINT "if the file uses decimal commas, read it with the decimal-comma option (--decimal-comma)"
 
 typedef struct line_ref {
@@ -204,6 +208,15 @@ static int parse_field(const char *p, size_t len, int decimal_comma, double *out
 	return 0;
 }
 
+static int starts_like_number(const char *p, size_t len)
+{
+	if (len && (*p == '+' || *p == '-'))
+		p++, len--;
+	if (len && *p == '.')
+		p++, len--;
+	return len && *p >= '0' && *p <= '9';
+}
+
 static char pick_delimiter(const line_ref *l, int decimal_comma)
 {
 	if (memchr(l->p, '\t', l->len))
@@ -229,7 +242,8 @@ static int csv_read(irr_spectrum **out, const char *data, size_t len, const char
 	irr_yunits hdr_units = IRR_Y_UNKNOWN;
 	int hdr_um = 0, have_header = 0, delim_known = 0, warned_cols = 0, rc = IRR_OK;
 	int decimal_comma = o ? o->decimal_comma : 0;
-	char delim = 0;
+	char delim = 0, hdr_delim = 0;
+	line_ref hdr = {NULL, 0, 0};
 
 	*out = NULL;
 	/* Start small and grow: a huge file that fails on its second line
@@ -255,23 +269,43 @@ static int csv_read(irr_spectrum **out, const char *data, size_t len, const char
 			delim_known = 1;
 		}
 		nf = split(l.p, l.len, delim, f, fl, 3);
-		if (n == 0 && !have_header && nf >= 1 &&
+		/* A line is a header when its first field is words, not a
+		 * number that fails to parse ("4000,5" is a decimal comma). */
+		if (n == 0 && nf >= 1 && !starts_like_number(f[0], fl[0]) &&
 		    parse_field(f[0], fl[0], decimal_comma, &vx) < 0 && !looks_non_finite(f[0], fl[0])) {
-			/* A header line: names the columns and perhaps the units. */
-			have_header = 1;
-			hdr_um = header_x_units(f[0], fl[0]);
-			if (hdr_um < 0) {
+			/* Lines before the data: instrument metadata, then the
+			 * column names. A text with no numbers in its first lines
+			 * is not a spectrum export (and fails before a huge file
+			 * is read in full). */
+			if (++have_header > MAX_HEADER_LINES) {
 				rc = irr_spectrum__fail(err, IRR_EINPUT, name, l.no,
-				                   "X column '%.*s' is in nanometres: not an infrared axis (cm-1 or micrometres)",
-				                   (int)(fl[0] > 60 ? 60 : fl[0]), f[0]);
+				                        "no X,Y pair of numbers in the first %d lines: not a two-column spectrum export",
+				                        MAX_HEADER_LINES);
 				goto done;
 			}
-			if (nf >= 2)
-				hdr_units = header_y_units(f[1], fl[1]);
+			hdr = l;
+			hdr_delim = delim;
 			/* The data may use another delimiter than the header
 			 * ("wavenumber absorbance" over "1000,0.1"). */
 			delim_known = 0;
 			continue;
+		}
+		if (n == 0 && have_header) {
+			/* The last line before the data names the columns and
+			 * perhaps the units. */
+			const char *hf[3];
+			size_t hfl[3], hn = split(hdr.p, hdr.len, hdr_delim, hf, hfl, 3);
+			if (hn >= 1) {
+				hdr_um = header_x_units(hf[0], hfl[0]);
+				if (hdr_um < 0) {
+					rc = irr_spectrum__fail(err, IRR_EINPUT, name, hdr.no,
+					                        "X column '%.*s' is in nanometres: not an infrared axis (cm-1 or micrometres)",
+					                        (int)(hfl[0] > 60 ? 60 : hfl[0]), hf[0]);
+					goto done;
+				}
+			}
+			if (hn >= 2)
+				hdr_units = header_y_units(hf[1], hfl[1]);
 		}
 		if (nf < 2) {
 			rc = irr_spectrum__fail(err, IRR_EINPUT, name, l.no,

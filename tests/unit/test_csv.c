@@ -175,6 +175,30 @@ static void units_from_header_and_options(void **state)
 	irr_spectrum_free(s);
 }
 
+/* Instrument exports put a few metadata lines above the column names
+ * (common practice); the last line before the data names the columns. */
+static void metadata_lines_before_the_data(void **state)
+{
+	irr_spectrum *s;
+	char *text;
+	size_t n = 0;
+	(void)state;
+	s = read_text("Sample: LPC-0412 crude ester (Larkspur Process Chemistry)\n"
+	              "Detector: DTGS; source cut-off below 350 nm\n"
+	              "Resolution: 4 cm-1, 16 scans\n"
+	              "wavenumber (cm-1);%T\n4000;95\n3000;50\n", NULL);
+	assert_int_equal(irr_spectrum_points(s), 2);
+	assert_int_equal(irr_spectrum_source_y_units(s), IRR_Y_PERCENT_T);
+	irr_spectrum_free(s);
+	/* Text without numbers: refused after 100 lines, not read to its end. */
+	text = malloc(200 * 40);
+	assert_non_null(text);
+	for (int i = 0; i < 200; i++)
+		n += (size_t)sprintf(text + n, "just words on line %d, no data\n", i + 1);
+	expect_error(text, NULL, IRR_EINPUT, 101, "first 100 lines");
+	free(text);
+}
+
 static void decimal_commas_only_when_asked(void **state)
 {
 	static const char text[] = "Wellenzahl;Extinktion\n4000,5;0,012\n3900,5;0,250\n3800,5;0,013\n";
@@ -275,7 +299,7 @@ static void reading_a_file_and_missing_files(void **state)
 static void numbers_ignore_the_locale(void **state)
 {
 	irr_spectrum *s;
-	char dir[1024], cmd[1200], probe[16];
+	char dir[512], cmd[2048], probe[16];
 	const char *build = getenv("BUILD");
 	(void)state;
 	if (!setlocale(LC_ALL, "de_DE.UTF-8")) {
@@ -312,6 +336,7 @@ int main(void)
 		cmocka_unit_test(shared_atr_files_decode),
 		cmocka_unit_test(delimiters_and_headers),
 		cmocka_unit_test(units_from_header_and_options),
+		cmocka_unit_test(metadata_lines_before_the_data),
 		cmocka_unit_test(decimal_commas_only_when_asked),
 		cmocka_unit_test(bad_csv),
 		cmocka_unit_test(reading_a_file_and_missing_files),
