@@ -1642,6 +1642,25 @@ int irr_check_run(irr_check *c, irr_error *err)
 					break;
 				}
 			}
+			/* No C-H above 3000 means no sp2 or sp C-H. Not decisive on
+			 * its own: aromatic C-H stretches of solids can be lost on
+			 * the N-H background (4-chloroaniline). */
+			{
+				const irr_counts *k = irr_inventory_counts(c->inv);
+				int nch = k->c_h_sp2 + k->c_h_sp, seen = 0;
+				if (nch > 0 && rlo < 3000 && rhi > 3150) {
+					for (size_t j = 0; j < np && !seen; j++) {
+						const irr_peak *p = c->obs[j].peak;
+						if ((p->position >= 3000 && p->position <= 3150) ||
+						    (p->broad && p->low < 3075 && p->high > 3075))
+							seen = 1;
+					}
+					if (!seen && add_reason(c, "rule", 0, -1, -1,
+					                        "no band at 3000-3150 cm-1, where the structure's %d sp2/sp C-H should absorb: no C-H above 3000 means no sp2 or sp C-H (common practice)",
+					                        nch))
+						goto nomem;
+				}
+			}
 			if (broad_oh >= 0 && co >= 0 && !irr_inventory_find(c->inv, "carboxylic_acid") &&
 			    (c->obs[broad_oh].status == IRR_PEAK_UNEXPLAINED ||
 			     c->obs[co].status == IRR_PEAK_UNEXPLAINED)) {

@@ -558,7 +558,21 @@ static void aromatic_ring_and_ch_above_3000(void **state)
 
 	c = run_check("CCCCCCc1ccccc1", read_ref("n-hexane.jdx"), NULL, IRR_SAMPLING_TRANSMISSION, NULL, NULL);
 	assert_int_equal(irr_check_verdict(c), IRR_VERDICT_INCONSISTENT);
-	assert_true(has_decisive(c, "missing_band", NULL));
+	assert_true(has_decisive(c, "missing_band", "ring stretch"));
+	{
+		int rule = 0, ch_missing = 0;
+		for (size_t i = 0; i < irr_check_reason_count(c); i++)
+			if (!strcmp(irr_check_reason(c, i)->code, "rule") &&
+			    strstr(irr_check_reason(c, i)->text, "no C-H above 3000"))
+				rule = 1;
+		for (size_t i = 0; i < irr_check_expected_count(c); i++) {
+			const irr_expected *e = irr_check_expected(c, i);
+			if (strstr(e->band->label, "aromatic C-H stretch") && e->status == IRR_BAND_MISSING)
+				ch_missing = 1;
+		}
+		assert_true(rule);
+		assert_true(ch_missing);
+	}
 	for (size_t j = 0; j < irr_check_observed_count(c); j++) {
 		/* and indeed nothing significant above 3000 cm-1 */
 		const irr_observed *o = irr_check_observed(c, j);
