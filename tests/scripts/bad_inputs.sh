@@ -110,6 +110,9 @@ check_case() {  # case name; sets WHY on failure
 			local body
 			printf -v body '%b' "$3"
 			{ printf '%b' "${5:-}"; for ((i = 0; i < $4; i++)); do printf '%s' "$body"; done; printf '%b\n' "${6:-}"; } >"$2" ;;
+		seq)     # seq PATH FIRST STEP COUNT [SUFFIX]: COUNT lines "<value><SUFFIX>"
+			awk -v a="$3" -v d="$4" -v n="$5" -v s="${6:-}" \
+				'BEGIN { for (i = 0; i < n; i++) printf "%.4f%s\n", a + i * d, s }' >"$2" ;;
 		copy)    # copy FROM TO
 			cp "$2" "$3" || { WHY="setup failed: $s"; return 1; } ;;
 		link)    # link TARGET PATH: a symbolic link
