@@ -64,10 +64,11 @@ mk wrong_structure --structure-file $E/ester-wrong-structure/registered.smi \
 	--spectrum $E/ester-wrong-structure/LPC-3305-11.csv --sample LPC-3305-11
 mk transmittance --structure-file $E/amide-coupling/product.smi --sampling transmission \
 	--spectrum $E/amide-coupling/LPC-5512-01.jdx --sample LPC-5512-01
-# Hostile and overlong text: markup in the sample id, a 40-atom SMILES.
+# Hostile and overlong text: markup, a byte that is not UTF-8 and a control
+# character in the sample id, a 40-atom SMILES.
 mk hostile --structure 'CCCCCCCCCCCCCCCCC(=O)OCC(COC(=O)CCCCCCC)OC(=O)c1ccc(cc1)C#N' \
 	--spectrum $E/residual-ethyl-acetate/LPC-4470-02.jdx \
-	--sample '<script>alert(1)</script> & "LPC" '\''x'\'' — µ-batch with a very long name that goes on and on and on'
+	--sample '<script>alert(1)</script> & "LPC" '\''x'\'' — µ-batch'$'\xff\x01''with a very long name that goes on and on and on'
 printf 'position,intensity\n3062,weak\n2925,medium\n1686,strong\n1599,medium\n1450,medium\n1360,strong\n1266,strong\n761,strong\n691,strong\n' > "$T/peaks.csv"
 mk peaklist --structure 'CC(=O)c1ccccc1' --peaks "$T/peaks.csv" --sample peak-list
 # A narrow range (only the double-bond region measured), written by synth.
