@@ -58,7 +58,9 @@ double irr_synth_class_height(irr_intensity v);
 double irr_synth_class_fwhm(irr_shape s, const irr_synth_options *o);
 
 /* Adds the bands of prediction `p`, each scaled by `scale`, to y[0..n-1]
- * sampled at x[0..n-1] (cm-1). Sampling and widths come from `o`. */
+ * sampled at x[0..n-1] (cm-1). Widths and the ATR factor come from `o`
+ * (NULL: defaults); make `p` with sampling TRANSMISSION so that ATR is not
+ * counted twice. */
 void irr_synth_add_prediction(double *y, const double *x, size_t n,
                               const irr_prediction *p, double scale,
                               const irr_synth_options *o);
