@@ -561,6 +561,40 @@ static void next_token(const char **pp, const char *e, int semicolon_sep, token 
 	*pp = p;
 }
 
+/* The ordinates of a compressed line are nearly all SQZ, DIF or DUP
+ * tokens with plain digits right after each other: those are decoded here
+ * without the general path's checks; anything else (separators, AFFN,
+ * PAC, words, errors) goes to next_token. */
+static inline void next_y_token(const char **pp, const char *e, token *t)
+{
+	const char *p = *pp;
+	unsigned k, kc;
+	uint64_t m;
+	const char *start;
+	if (p >= e)
+		goto general;
+	k = asdf_class[(unsigned char)*p];
+	kc = k & 0xF0;
+	if (kc < K_SQZP || kc > K_DUP)
+		goto general;
+	start = p + 1;
+	m = k & 0x0F;
+	p = start;
+	while ((unsigned)(*p - '0') <= 9) {
+		m = m * 10 + (uint64_t)(*p - '0');
+		p++;
+	}
+	if (p - start > 16)
+		goto general;
+	t->at = *pp;
+	t->kind = kc == K_DUP ? TK_DUP : (kc == K_DIFP || kc == K_DIFN) ? TK_DIF : TK_ABS;
+	t->v = (kc == K_SQZN || kc == K_DIFN) ? -(double)m : (double)m;
+	*pp = p;
+	return;
+general:
+	next_token(pp, e, 0, t);
+}
+
 /* ---- data decoding ---------------------------------------------------------- */
 
 typedef struct decoded {
@@ -754,7 +788,7 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 			d->last_line_index = line_start_n;
 		}
 		for (;;) {
-			next_token(&q, de, 0, &t);
+			next_y_token(&q, de, &t);
 			if (t.kind == TK_END)
 				break;
 			if (first_y && t.kind != TK_ABS) {

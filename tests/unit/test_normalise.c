@@ -130,6 +130,44 @@ static void transmittance_to_absorbance(void **state)
 	irr_spectrum_free(s);
 }
 
+/* The conversion's logarithm against the C library's log10 over the whole
+ * range transmittance takes (1e-6 .. 2, random, and powers of ten). */
+static void absorbance_matches_log10(void **state)
+{
+	enum { N = 20001 };
+	static double x[N], t[N];
+	uint32_t r = 12345u;
+	irr_spectrum *s;
+	double worst = 0;
+	(void)state;
+	for (int i = 0; i < N; i++) {
+		x[i] = 400 + i;
+		r ^= r << 13;
+		r ^= r >> 17;
+		r ^= r << 5;
+		t[i] = pow(10.0, -6.0 + 6.30103 * (r / 4294967296.0));
+	}
+	t[0] = 1.0;
+	t[1] = 0.1;
+	t[2] = 0.001;
+	t[3] = 2.0;
+	t[4] = nextafter(1.0, 0.0);
+	t[5] = nextafter(1.0, 2.0);
+	s = make(x, t, N, IRR_Y_TRANSMITTANCE);
+	normalise_ok(s);
+	for (int i = 0; i < N; i++) {
+		double d = fabs(irr_spectrum_y(s)[i] + log10(t[i]));
+		if (d > worst)
+			worst = d;
+	}
+	assert_true(irr_spectrum_y(s)[0] == 0.0);
+	assert_true(fabs(irr_spectrum_y(s)[2] - 3.0) < 1e-15);
+	/* A few units in the last place of values up to 6. */
+	if (!(worst < 4e-15))
+		fail_msg("largest difference from -log10(T): %g", worst);
+	irr_spectrum_free(s);
+}
+
 static void reflectance_kubelka_munk_arbitrary(void **state)
 {
 	const double x[4] = {1000, 2000, 3000, 4000};
@@ -490,6 +528,7 @@ int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(transmittance_to_absorbance),
+		cmocka_unit_test(absorbance_matches_log10),
 		cmocka_unit_test(reflectance_kubelka_munk_arbitrary),
 		cmocka_unit_test(axis_becomes_ascending_cm1),
 		cmocka_unit_test(units_detected_when_unknown),
