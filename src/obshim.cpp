@@ -324,7 +324,14 @@ int extract(irr_obshim_mol *m, size_t max_heavy, irr_obshim_graph *g, char *why,
 		x->charge = a->GetFormalCharge();
 		x->isotope = a->GetIsotope();
 		x->aromatic = a->IsAromatic() ? 1 : 0;
-		x->h_count = static_cast<int>(a->GetImplicitHCount() + a->ExplicitHydrogenCount());
+		x->h_count = static_cast<int>(a->GetImplicitHCount());
+		FOR_NBORS_OF_ATOM(nb, a)
+			if (nb->GetAtomicNum() == 1) {
+				if (nb->GetIsotope() >= 2)
+					x->d_count += 1;
+				else
+					x->h_count += 1;
+			}
 		x->in_ring = a->IsInRing() ? 1 : 0;
 		int deg = 0;
 		FOR_NBORS_OF_ATOM(nb, a)

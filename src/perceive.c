@@ -1562,6 +1562,19 @@ static void perceive_water(ctx *c)
 			emit(c, "water", (int)i, -1, -1);
 }
 
+/* Bonds to deuterium (or tritium): one instance per bond, so that CDCl3
+ * and CD2Cl2 give 1 and 2 C-D (the stretch sits near 2100-2300 cm-1,
+ * about 1/sqrt(2) of the C-H one: reduced-mass isotope shift). */
+static void perceive_deuterium(ctx *c)
+{
+	for (size_t i = 0; i < c->n; i++) {
+		int z = EL(c, i);
+		const char *id = z == 6 ? "c_d" : z == 8 ? "o_d" : z == 7 ? "n_d" : NULL;
+		for (int k = 0; id && k < c->at[i].d_count; k++)
+			emit(c, id, (int)i, -1, -1);
+	}
+}
+
 /* ---------------------------------------------------------------- SMARTS groups */
 
 /* Compiled SMARTS of the last tables seen, so that a batch compiles each
@@ -1805,6 +1818,7 @@ int irr_perceive(irr_inventory **out, const irr_molecule *m, const struct irr_ta
 	perceive_ethers_halides(&c);
 	perceive_alkyl(&c);
 	perceive_water(&c);
+	perceive_deuterium(&c);
 	protonate_amine_salts(&c);
 	if (c.oom) {
 		rc = IRR_ENOMEM;

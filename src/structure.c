@@ -483,12 +483,13 @@ static void assign_ring_sizes(irr_molecule *m)
 static int build_formula(irr_molecule *m, int stray_h)
 {
 	long count[130] = {0};
-	long hydrogens = stray_h;
+	long hydrogens = stray_h, deuterium = 0;
 	for (size_t i = 0; i < m->natoms; i++) {
 		int z = m->atoms[i].element;
 		if (z > 0 && z < N_ELEMENTS)
 			count[z]++;
 		hydrogens += m->atoms[i].h_count;
+		deuterium += m->atoms[i].d_count;
 	}
 	count[1] += hydrogens;
 	size_t size = 16 * (N_ELEMENTS + 1);
@@ -518,11 +519,23 @@ static int build_formula(irr_molecule *m, int stray_h)
 		used[best] = 1;
 		order[n++] = best;
 	}
+	/* Heavy hydrogens are written D: after H (or after C when there is no
+	 * H: "CDCl3"); without carbon in alphabetical place ("D2O"). */
 	for (int k = 0; k < n; k++) {
 		int z = order[k];
+		if (deuterium && !has_c && z != 1 && strcmp("D", element_symbols[z]) < 0) {
+			p += deuterium == 1 ? sprintf(p, "D") : sprintf(p, "D%ld", deuterium);
+			deuterium = 0;
+		}
 		p += count[z] == 1 ? sprintf(p, "%s", element_symbols[z])
 		                   : sprintf(p, "%s%ld", element_symbols[z], count[z]);
+		if (deuterium && has_c && (z == 1 || (z == 6 && !count[1]))) {
+			p += deuterium == 1 ? sprintf(p, "D") : sprintf(p, "D%ld", deuterium);
+			deuterium = 0;
+		}
 	}
+	if (deuterium)
+		p += deuterium == 1 ? sprintf(p, "D") : sprintf(p, "D%ld", deuterium);
 	m->formula = out;
 	return IRR_OK;
 }

@@ -46,6 +46,9 @@
  *             boronic_ester
  *   halogen:  c_f, c_cl, c_br, c_i [aryl]
  *   other:    water (a water molecule as a component, e.g. a hydrate)
+ *   isotopes: c_d, o_d, n_d (one instance per bond to [2H] or [3H]; such
+ *             hydrogens are not counted as H anywhere else: CDCl3 has no
+ *             methine and no C-H in the counts, D2O is no water)
  *
  * A group entry merges the instances with the same id and attributes;
  * `count` says how many there were and `atoms` lists all their atoms.

@@ -32,6 +32,8 @@ typedef struct irr_atom {
 	int degree;         /* heavy-atom neighbours */
 	int component;      /* 0-based index of the '.'-separated component
 	                       (connected component, numbered by first atom) */
+	int d_count;        /* heavy hydrogens ([2H], [3H]) on the atom; these
+	                       are not in h_count (C-D absorbs near 2200, not 2900) */
 } irr_atom;
 
 typedef struct irr_bond {

@@ -267,6 +267,13 @@ static void hydroxyl_groups(void **state)
 	       W("phenol", ANY, ANY, ANY, ANY, 0, NULL, 1));
 	EXPECT("diacetone alcohol (beta-hydroxy ketone)", "CC(=O)CC(C)(C)O", NULL,
 	       W("alcohol_tertiary", ANY, ANY, ANY, ANY, 1, NULL, 1));
+	EXPECT("chloroform-d", "[2H]C(Cl)(Cl)Cl", NULL, W("c_d", ANY, ANY, ANY, ANY, ANY, NULL, 1),
+	       W("methine", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("c_cl", ANY, ANY, ANY, ANY, ANY, NULL, 3));
+	EXPECT("methanol-d4", "[2H]OC([2H])([2H])[2H]", NULL,
+	       W("c_d", ANY, ANY, ANY, ANY, ANY, NULL, 3), W("o_d", ANY, ANY, ANY, ANY, ANY, NULL, 1),
+	       W("alcohol_primary", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("heavy water is no water band source", "[2H]O[2H]", NULL,
+	       W("o_d", ANY, ANY, ANY, ANY, ANY, NULL, 2), W("water", ANY, ANY, ANY, ANY, ANY, NULL, 0));
 	EXPECT("copper(II) acetate monohydrate", "CC(=O)[O-].CC(=O)[O-].O.[Cu+2]", NULL,
 	       W("water", ANY, ANY, ANY, ANY, ANY, NULL, 1), W("carboxylate", ANY, ANY, ANY, ANY, ANY, NULL, 2));
 }

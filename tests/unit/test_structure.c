@@ -47,6 +47,8 @@ static void formula_and_mass(void **state)
 		{"O", "H2O", 18.02},                             /* water */
 		{"ClC(Cl)Cl", "CHCl3", 119.38},                  /* chloroform, CRC */
 		{"[H]OC([H])([H])[H]", "CH4O", 32.04},           /* methanol, explicit H */
+		{"[2H]C(Cl)(Cl)Cl", "CDCl3", 120.38},             /* chloroform-d, CRC */
+		{"[2H]O[2H]", "D2O", 20.03},                      /* heavy water, CRC */
 	};
 	for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
 		irr_molecule *m = parse_ok(cases[i].smiles);
@@ -66,6 +68,11 @@ static void explicit_hydrogens_fold_into_counts(void **state)
 	assert_int_equal(irr_molecule_atom(m, 0)->element, 8);
 	assert_int_equal(irr_molecule_atom(m, 0)->h_count, 1);
 	assert_int_equal(irr_molecule_atom(m, 1)->h_count, 3);
+	irr_molecule_free(m);
+	/* Chloroform-d: the deuterium is no H (C-D absorbs near 2250 cm-1). */
+	m = parse_ok("[2H]C(Cl)(Cl)Cl");
+	assert_int_equal(irr_molecule_atom(m, 0)->h_count, 0);
+	assert_int_equal(irr_molecule_atom(m, 0)->d_count, 1);
 	irr_molecule_free(m);
 }
 
