@@ -348,23 +348,34 @@ static double x_at(const double *x, size_t n, double t)
 	return x[i] + f * (x[i + 1] - x[i]);
 }
 
-static int in_saturated(double pos, const double *sat, size_t nsat, double guard)
+/* Index of the first x >= v (n when none); x ascending. */
+static size_t first_at_or_above(const double *x, size_t n, double v)
 {
-	for (size_t k = 0; k < nsat; k++)
-		if (pos >= sat[2 * k] - guard && pos <= sat[2 * k + 1] + guard)
-			return 1;
-	return 0;
+	size_t lo = 0, hi = n;
+	while (lo < hi) {
+		size_t mid = lo + (hi - lo) / 2;
+		if (x[mid] < v)
+			lo = mid + 1;
+		else
+			hi = mid;
+	}
+	return lo;
 }
 
 /* Working arrays, one allocation. */
 struct work {
-	double *x, *y;      /* working grid (own copies when resampled) */
-	double *s, *base, *c, *r, *d2, *lb, *rb, *smin, *scratch, *noise, *nd2, *blk;
+	const double *x, *y; /* working grid: the caller's, or resampled */
+	double *s, *base, *c, *r, *d2, *lb, *rb, *smin, *scratch;
+	double *blk;         /* per block: raw, d2 levels, then their medians */
+	double *bsn, *bsd;   /* per block noise sd (raw) and of the 2nd derivative */
 	size_t *stk, *stk2;
 	unsigned char *keep;
+	unsigned char *satm; /* 1: in a saturated range; 2: within guard of one */
 	void *block;
 };
 typedef struct work work;
+#define NOISE_AT(w, i) ((w).bsn[(i) / NOISE_BLOCK])
+#define D2NOISE_AT(w, i) ((w).bsd[(i) / NOISE_BLOCK])
 
 /* Crossings of `level` left and right of maximum i, walked no further
  * than the valleys lv and rv; a missing side is mirrored about pos.
@@ -472,6 +483,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 	const irr_peak_options *o = opt;
 	irr_peaklist *pl = NULL;
 	work w;
+	double *xr = NULL, *yr = NULL; /* resampled grid, inside w.block */
 	size_t n, nb;
 	double dx, med;
 	int half, order, rc = IRR_OK, uniform = 1;
@@ -534,16 +546,18 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 
 	/* One block for every working array. */
 	{
-		size_t nd = 13, bytes;
+		size_t nd = uniform ? 9 : 11, bytes;
 		nb = (n + NOISE_BLOCK - 1) / NOISE_BLOCK;
-		bytes = (nd * n + 2 * nb) * sizeof(double) + 2 * n * sizeof(size_t) + n;
+		bytes = (nd * n + 4 * nb) * sizeof(double) + 2 * n * sizeof(size_t) + 2 * n;
 		w.block = malloc(bytes);
 		if (!w.block)
 			return irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
 		double *d = w.block;
-		w.x = d; d += n;
-		w.y = d; d += n;
-		w.s = d; d += n;
+		if (!uniform) {
+			xr = d; d += n;
+			yr = d; d += n;
+		}
+		w.s = d; d += n;     /* smoothed; then the unsmoothed trace above the baseline */
 		w.base = d; d += n;
 		w.c = d; d += n;
 		w.d2 = d; d += n;
@@ -551,18 +565,21 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		w.rb = d; d += n;
 		w.smin = d; d += n;
 		w.scratch = d; d += n;
-		w.noise = d; d += n; /* per point noise sd, raw-trace equivalent */
-		w.nd2 = d; d += n;   /* per point noise of the second derivative */
-		w.r = d; d += n;     /* unsmoothed trace above the baseline */
-		w.blk = d; d += 2 * nb; /* per block noise levels */
+		w.r = w.s;
+		w.blk = d; d += 2 * nb;
+		w.bsn = d; d += nb;
+		w.bsd = d; d += nb;
 		w.stk = (size_t *)d;
 		w.stk2 = w.stk + n;
 		w.keep = (unsigned char *)(w.stk2 + n);
+		w.satm = w.keep + n;
 	}
 	if (uniform) {
-		memcpy(w.x, x0, n * sizeof(double));
-		memcpy(w.y, y0, n * sizeof(double));
+		w.x = x0;
+		w.y = y0;
 	} else {
+		w.x = xr;
+		w.y = yr;
 		size_t j = 0;
 		for (size_t k = 0; k < n; k++) {
 			double xk = x0[0] + dx * (double)k;
@@ -575,10 +592,15 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 				f = 0.0;
 			if (f > 1.0)
 				f = 1.0;
-			w.x[k] = xk;
-			w.y[k] = y0[j] + f * (y0[j + 1] - y0[j]);
+			xr[k] = xk;
+			yr[k] = y0[j] + f * (y0[j + 1] - y0[j]);
 		}
 	}
+
+	/* Saturated ranges as a mask, so that the loops below ask in O(1);
+	 * bit 2 widens each range by the guard (2*half+2 points, set once
+	 * half is known). Marked by binary search on the ascending axis. */
+	memset(w.satm, 0, n);
 
 	/* Savitzky-Golay parameters. Degree 4 (quartic) keeps band heights and
 	 * widths where a quadratic of the same window would flatten narrow
@@ -614,6 +636,15 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		goto done;
 	}
 	gain2 = irr_sg__noise_gain(half, order, 2);
+	for (size_t k = 0; k < nsat; k++) {
+		size_t g = (size_t)(2 * half + 2), a = first_at_or_above(w.x, n, sat[2 * k]);
+		for (size_t i = a > g ? a - g : 0; i < n && (i < a || w.x[i] <= sat[2 * k + 1]); i++)
+			w.satm[i] |= (unsigned char)(2 | (i >= a ? 1 : 0));
+		/* The guard beyond the high end. */
+		size_t e = first_at_or_above(w.x, n, sat[2 * k + 1]);
+		for (size_t i = e; i < n && i < e + g + 1; i++)
+			w.satm[i] |= 2;
+	}
 
 	if (o->baseline)
 		hull_baseline(w.x, w.s, n, w.base, w.stk);
@@ -621,7 +652,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		memset(w.base, 0, n * sizeof(double));
 	for (size_t i = 0; i < n; i++) {
 		w.c[i] = w.s[i] - w.base[i];
-		w.r[i] = w.y[i] - w.base[i];
+		w.r[i] = w.y[i] - w.base[i]; /* r is s's storage, no longer needed */
 	}
 
 	/* Noise. sigma: the global robust level of the raw trace (white-noise
@@ -689,12 +720,8 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 				bn[b] = bd[b] / gain2;
 		}
 		for (size_t b = 0; b < nb; b++) {
-			double sn = med3(bn, nb, b), sd = med3(bd, nb, b);
-			size_t e = (b + 1) * NOISE_BLOCK < n ? (b + 1) * NOISE_BLOCK : n;
-			for (size_t i = b * NOISE_BLOCK; i < e; i++) {
-				w.noise[i] = sn;
-				w.nd2[i] = sd;
-			}
+			w.bsn[b] = med3(bn, nb, b);
+			w.bsd[b] = med3(bd, nb, b);
 		}
 	}
 
@@ -722,7 +749,6 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 	prominence_bases(w.c, n, w.lb, w.rb, w.stk, w.smin);
 	{
 		double hmax = 0.0;
-		double guard = (2 * half + 2) * dx;
 		memset(w.keep, 0, n);
 		/* Not within a half window of either end: there the end
 		 * polynomial extrapolates, and a band cut off by the end of the
@@ -733,20 +759,19 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 				continue;
 			double base = w.lb[i] > w.rb[i] ? w.lb[i] : w.rb[i];
 			double prom = w.c[i] - base;
-			if (prom < o->min_snr * w.noise[i])
+			if (prom < o->min_snr * NOISE_AT(w, i))
 				continue;
-			if (w.c[i] < o->min_snr * w.noise[i])
+			if (w.c[i] < o->min_snr * NOISE_AT(w, i))
 				continue;
-			if (in_saturated(w.x[i], sat, nsat, guard))
+			if (w.satm[i] & 2)
 				continue;
 			w.keep[i] = 1;
 			if (w.c[i] > hmax)
 				hmax = w.c[i];
 		}
-		for (size_t k = 0; k < nsat; k++)
-			for (size_t i = 0; i < n; i++)
-				if (w.x[i] >= sat[2 * k] && w.x[i] <= sat[2 * k + 1] && w.c[i] > hmax)
-					hmax = w.c[i];
+		for (size_t i = 0; nsat && i < n; i++)
+			if ((w.satm[i] & 1) && w.c[i] > hmax)
+				hmax = w.c[i];
 		/* The relative floor is applied now, before widths and valleys
 		 * are measured, so that ripple on a broad band (dropped here)
 		 * does not cut the broad band's width short. A maximum is judged
@@ -777,12 +802,12 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 				size_t a = q > 0 ? kidx[q - 1] : 0, j;
 				/* A saturated range is a wall: its band is not ours. */
 				lv = i;
-				for (j = i; j > a && !in_saturated(w.x[j - 1], sat, nsat, 0.0); j--)
+				for (j = i; j > a && !(w.satm[j - 1] & 1); j--)
 					if (w.c[j - 1] < w.c[lv])
 						lv = j - 1;
 				size_t b = q + 1 < nk ? kidx[q + 1] : n - 1;
 				rv = i;
-				for (j = i; j < b && !in_saturated(w.x[j + 1], sat, nsat, 0.0); j++)
+				for (j = i; j < b && !(w.satm[j + 1] & 1); j++)
 					if (w.c[j + 1] < w.c[rv])
 						rv = j + 1;
 			}
@@ -890,7 +915,6 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		 * it). */
 		if (o->shoulders && nk > 0) {
 			double *nd2 = w.scratch;
-			double guard = (2 * half + 2) * dx;
 			size_t *sig = w.stk + nk, ns = 0; /* significant lobes, after kidx */
 			for (size_t i = 0; i < n; i++)
 				nd2[i] = -w.d2[i];
@@ -900,7 +924,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 				if (!(nd2[i] > nd2[i - 1] && nd2[i] >= nd2[i + 1] && nd2[i] > 0.0))
 					continue;
 				double base = w.lb[i] > w.rb[i] ? w.lb[i] : w.rb[i];
-				if (nd2[i] - base < o->shoulder_factor * o->min_snr * w.nd2[i])
+				if (nd2[i] - base < o->shoulder_factor * o->min_snr * D2NOISE_AT(w, i))
 					continue;
 				sig[ns++] = i;
 			}
@@ -923,7 +947,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 				/* A shoulder must stand higher above the baseline than a
 				 * maximum (the rubber band lies on the noise's lowest
 				 * dips, which lifts every height by a few noise sd). */
-				if (w.c[i] < o->shoulder_factor * o->min_snr * w.noise[i])
+				if (w.c[i] < o->shoulder_factor * o->min_snr * NOISE_AT(w, i))
 					continue;
 				/* Next to a kept maximum it is part of that maximum's
 				 * top (a flat top has two lobes), not a separate band;
@@ -940,7 +964,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 					if (near)
 						continue;
 				}
-				if (in_saturated(w.x[i], sat, nsat, guard))
+				if (w.satm[i] & 2)
 					continue;
 				/* Against ripple where the noise is very low (digitised
 				 * or interpolated data): the lobe must be a tenth as deep
