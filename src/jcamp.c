@@ -1342,7 +1342,7 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 					goto done;
 				if (d.line_mismatch && fabs(d.first_line_x * xf - x0) <= tol &&
 				    (rc = warn(name, err, irr_spectrum__warn(s,
-				             "data line %ld starts at X = %.10g where the point count puts X = %.10g (##XFACTOR, ##DELTAX or lost data?)",
+				             "data line %ld starts at X = %.10g where ##FIRSTX, ##LASTX and ##NPOINTS put X = %.10g (one of them, or ##XFACTOR, is wrong)",
 				             d.line_mismatch, d.mismatch_x, d.mismatch_expect))) < 0)
 					goto done;
 				if (h.lastx.have && n > 1) {

@@ -579,6 +579,24 @@ static void header_checks_warn_naming_the_label(void **state)
 			fail_msg("no warning naming %s", cases[i].label);
 		irr_spectrum_free(s);
 	}
+	/* A wrong ##XFACTOR or ##LASTX puts the data lines' X out of step. */
+	{
+		static const char *const bad[][2] = {
+		    {"##XFACTOR= 2\n##YFACTOR= 0.01\n##FIRSTX= 4000\n##LASTX= 3993\n", "##XFACTOR"},
+		    {"##XFACTOR= 1\n##YFACTOR= 0.01\n##FIRSTX= 4000\n##LASTX= 3980\n", "##LASTX"},
+		};
+		for (size_t i = 0; i < 2; i++) {
+			irr_spectrum *s = NULL;
+			snprintf(text, sizeof text,
+			         "##TITLE= x\n##DATA TYPE= INFRARED SPECTRUM\n##XUNITS= 1/CM\n##YUNITS= ABSORBANCE\n"
+			         "%s##NPOINTS= 8\n##XYDATA= (X++(Y..Y))\n4000 10 20 30 40\n3996 50 60 70 80\n##END=\n",
+			         bad[i][0]);
+			assert_int_equal(irr_spectrum_read_memory(&s, text, strlen(text), "h", NULL, &err), IRR_OK);
+			if (!has_warning(s, bad[i][1]))
+				fail_msg("no warning naming %s", bad[i][1]);
+			irr_spectrum_free(s);
+		}
+	}
 	/* The same headers, consistent: no warning at all. */
 	{
 		irr_spectrum *s = NULL;
