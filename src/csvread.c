@@ -208,6 +208,14 @@ static int parse_field(const char *p, size_t len, int decimal_comma, double *out
 	return 0;
 }
 
+static size_t count_fields(const char *p, size_t len, char delim)
+{
+	size_t n = 1;
+	for (size_t i = 0; i < len; i++)
+		n += p[i] == delim;
+	return n;
+}
+
 static int starts_like_number(const char *p, size_t len)
 {
 	if (len && (*p == '+' || *p == '-'))
@@ -315,7 +323,7 @@ static int csv_read(irr_spectrum **out, const char *data, size_t len, const char
 			goto done;
 		}
 		if (nf > 2)
-			warned_cols = 1;
+			warned_cols = delim == ',' && !decimal_comma && count_fields(l.p, l.len, ',') == 4 ? 2 : 1;
 		for (int k = 0; k < 2; k++) {
 			double *dst = k ? &vy : &vx;
 			if (parse_field(f[k], fl[k], decimal_comma, dst) < 0) {
@@ -376,7 +384,9 @@ static int csv_read(irr_spectrum **out, const char *data, size_t len, const char
 	if ((rc = irr_spectrum__check_xy(s, lines, err)) < 0)
 		goto done;
 	if (warned_cols &&
-	    (rc = irr_spectrum__warn(s, "more than two columns: X and Y taken from the first two")) < 0)
+	    (rc = irr_spectrum__warn(s, "more than two columns: X and Y taken from the first two%s",
+	                             warned_cols == 2 ? " (four comma-separated fields: "
+	                                                DECIMAL_COMMA_HINT ")" : "")) < 0)
 		goto nomem;
 	s->x_micrometers = hdr_um || (o && o->x_micrometers);
 	if (o && o->y_units != IRR_Y_UNKNOWN) {

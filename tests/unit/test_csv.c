@@ -217,6 +217,12 @@ static void decimal_commas_only_when_asked(void **state)
 	s = read_text("4000,5 0,012\n3900,5 0,250\n", &o);
 	assert_true(irr_spectrum_x(s)[1] == 3900.5 && irr_spectrum_y(s)[1] == 0.25);
 	irr_spectrum_free(s);
+	/* Comma-separated decimal commas cannot be told from four columns: the
+	 * first two are read, with a warning that says what else it may be. */
+	s = read_text("4000,5,0,012\n3900,5,0,250\n", NULL);
+	assert_int_equal(irr_spectrum_warning_count(s), 1);
+	assert_non_null(strstr(irr_spectrum_warning(s, 0), "--decimal-comma"));
+	irr_spectrum_free(s);
 	/* Without the option a blank-separated decimal comma is refused too. */
 	expect_error("4000,5 0,012\n3900,5 0,250\n", NULL, IRR_EINPUT, 1, "decimal");
 }
