@@ -56,6 +56,17 @@ subst() {
 	printf '%s' "$s"
 }
 
+# has_fragment 'A || B' FILE: FILE holds A or B (case ignored).
+has_fragment() {
+	local rest=$1 alt
+	while :; do
+		alt=${rest%% || *}
+		grep -qiF -- "$alt" "$2" && return 0
+		[ "$alt" = "$rest" ] && return 1
+		rest=${rest#* || }
+	done
+}
+
 check_case() {  # case name; sets WHY on failure
 	local c=$1 exp=$DIR/$1.expect
 	local run="" status="" where="" fragment="" stdin="" timeout_s=20 stdout_rule=empty
@@ -150,7 +161,7 @@ check_case() {  # case name; sets WHY on failure
 		want=$(subst "$where")
 		re=$(printf '%s' "${want%:\*}" | sed 's|[][\.*^$()+?{}]|\\&|g')
 		[ "${want%:\*}" != "$want" ] && re="$re:[1-9][0-9]*"
-		if ! grep -E -- "(^|[[:space:]])$re: " "$TMP/stderr" | grep -qiF -- "$fragment"; then
+		if ! grep -E -- "(^|[[:space:]])$re: " "$TMP/stderr" >"$TMP/named" || ! has_fragment "$fragment" "$TMP/named"; then
 			WHY="no stderr line names '$want: ...$fragment...': $(head -n 12 "$TMP/stderr" | tr '\n' '|')"
 		fi
 	elif [ "$nlines" -ne 1 ] || [ -z "$err" ]; then
@@ -169,7 +180,7 @@ check_case() {  # case name; sets WHY on failure
 		elif [ "${got#"$want":}" = "$got" ]; then
 			WHY="error should name '$want:': $err"
 		fi
-		if [ -z "$WHY" ] && ! grep -qiF -- "$fragment" "$TMP/stderr"; then
+		if [ -z "$WHY" ] && ! has_fragment "$fragment" "$TMP/stderr"; then
 			WHY="error lacks '$fragment': $err"
 		fi
 	fi
