@@ -92,6 +92,9 @@ static const opt_def *find_opt(const char *a)
 /* ---- Output: stdout, or a temporary file renamed at the end ---------------- */
 
 static char *tmp_path;           /* the temporary output while it exists */
+/* The samples to run. File-level so that worker processes, which end with
+ * _exit() in the middle of cmd_batch, still hold it (no leak reports). */
+static size_t *volatile selection;
 
 static void on_signal(int sig)
 {
@@ -545,9 +548,9 @@ static int run_parallel(const job *j, const size_t *sel, size_t nsel, int jobs,
 			break;
 		}
 		if (w[k].pid == 0) {
-			/* The worker: no output file of its own, default signals. */
+			/* The worker: no output file of its own (the parent's
+			 * temporary name stays with the parent), default signals. */
 			catch_signals(SIG_DFL);
-			tmp_path = NULL;
 			close(p[0]);
 			for (int q = 0; q < k; q++)
 				close(w[q].fd);
@@ -760,7 +763,7 @@ int cmd_batch(int argc, char **argv)
 		status = cli_fail(&err);
 		goto done;
 	}
-	sel = malloc((irr_manifest_count(m) + 1) * sizeof *sel);
+	sel = selection = malloc((irr_manifest_count(m) + 1) * sizeof *sel);
 	if (!sel) {
 		status = cli_usage_error("batch", "out of memory");
 		goto done;
@@ -820,6 +823,7 @@ done:
 		free(tl.not_lines[i]);
 	}
 	free(sel);
+	selection = NULL;
 	free(extra);
 	irr_request_free(base);
 	irr_tables_free(t);
