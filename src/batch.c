@@ -387,7 +387,7 @@ static int jsonl_row(irr_manifest *m, row *r, const char *d, size_t n, long line
 			row_fail(r, m->name, line, "unknown key \"%s\"", e->string);
 			break;
 		}
-		if (cJSON_IsNull(e) || f == F_SAMPLE)
+		if (cJSON_IsNull(e) || (f == F_SAMPLE && cJSON_IsString(e)))
 			continue;
 		if ((f == F_SM || f == F_REAGENTS || f == F_SOLVENTS) && cJSON_IsArray(e)) {
 			const cJSON *x;
