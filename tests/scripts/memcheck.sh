@@ -26,28 +26,39 @@ VG=(valgrind --quiet --leak-check=full --show-leak-kinds=definite,indirect,possi
     --trace-children=yes --child-silent-after-fork=no
     --suppressions=tests/valgrind.supp)
 
-n=0; fail=0
-# vg NAME EXPECTED_STATUS ARGS...: one run under memcheck; the program's own
-# exit status must be the expected one (0/1/2, or '*' for any of them).
+n=0; running=0
+PAR=${MEMCHECK_JOBS:-2}
+# vg NAME EXPECTED_STATUS ARGS...: one run under memcheck, in the background
+# (PAR at a time); the program's own exit status must be the expected one
+# (0/1/2, or '*' for any of them). The verdict goes to $T/NAME.result.
 vg() {
 	local name=$1 want=$2; shift 2
-	local log=$T/$name
 	n=$((n + 1))
-	"${VG[@]}" --log-file="$log.vg.%p" "$PROG" "$@" >"$log.out" 2>"$log.err" </dev/null
-	local rc=$?
-	local bad
-	bad=$(cat "$log".vg.* 2>/dev/null | grep -E '^==[0-9]+== ' | grep -vE '^==[0-9]+== *$' | head -n 30)
-	if [ $rc -eq 99 ] || [ -n "$bad" ]; then
-		echo "FAIL $name: memcheck found problems:"
-		sed 's/^/    /' <<<"$bad"
-		fail=$((fail + 1))
-	elif [ "$want" != '*' ] && [ "$rc" != "$want" ]; then
-		echo "FAIL $name: exit $rc, expected $want: $(head -n 2 "$log.err")"
-		fail=$((fail + 1))
-	elif [ "$want" = '*' ] && [ "$rc" -gt 2 ]; then
-		echo "FAIL $name: exit $rc: $(head -n 2 "$log.err")"
-		fail=$((fail + 1))
+	vg_one "$name" "$want" "$@" &
+	running=$((running + 1))
+	if [ "$running" -ge "$PAR" ]; then
+		wait -n
+		running=$((running - 1))
 	fi
+}
+vg_one() {
+	local name=$1 want=$2; shift 2
+	local log=$T/$name rc bad
+	"${VG[@]}" --log-file="$log.vg.%p" "$PROG" "$@" >"$log.out" 2>"$log.err" </dev/null
+	rc=$?
+	bad=$(cat "$log".vg.* 2>/dev/null | grep -E '^==[0-9]+== ' | grep -vE '^==[0-9]+== *$' | head -n 30)
+	{
+		if [ $rc -eq 99 ] || [ -n "$bad" ]; then
+			echo "FAIL $name: memcheck found problems:"
+			sed 's/^/    /' <<<"$bad"
+		elif [ "$want" != '*' ] && [ "$rc" != "$want" ]; then
+			echo "FAIL $name: exit $rc, expected $want: $(head -n 2 "$log.err")"
+		elif [ "$want" = '*' ] && [ "$rc" -gt 2 ]; then
+			echo "FAIL $name: exit $rc: $(head -n 2 "$log.err")"
+		else
+			echo ok
+		fi
+	} >"$log.result"
 }
 
 # 1. The worked examples, as cases.tsv runs them, with JSON and the plot.
@@ -80,6 +91,7 @@ done
 vg predict-text 0 predict 'CC(C)(C)C1CCC(=O)CC1'
 vg predict-json 0 predict --json --phase gas 'O=C(OC)c1ccc(N=[N+]=[N-])cc1'
 vg synth 0 synth --structure 'CCOC(=O)C' --component 'CCO:0.2' --noise 0.002 --seed 7 -o "$T/synth.jdx"
+wait; running=0   # the next run reads what synth wrote
 vg synth-peaks 0 peaks "$T/synth.jdx"
 vg axis '*' axis "${spectra[0]}"
 vg rank '*' rank --spectrum examples/ester-wrong-structure/LPC-3305-11.csv \
@@ -108,5 +120,14 @@ vg err-request 2 check --request tests/data/bad/request-xy-lengths.json
 vg err-peaks 2 check --structure CCO --peaks tests/data/bad/peaks-bad-class.csv
 vg err-svg 2 check --structure CCO --spectrum tests/data/bad/jdx-sqz-truncated.jdx --svg "$T/never.svg"
 
+wait
+fail=0
+for r in "$T"/*.result; do
+	if [ "$(head -n 1 "$r")" != ok ]; then
+		cat "$r"
+		fail=$((fail + 1))
+	fi
+done
+[ "$(find "$T" -maxdepth 1 -name '*.result' | wc -l)" -eq "$n" ] || { echo "memcheck: some runs left no result"; fail=$((fail + 1)); }
 echo "memcheck: $((n - fail)) of $n runs clean"
 [ $fail -eq 0 ]
