@@ -165,6 +165,11 @@ void irr_peaklist_range(const irr_peaklist *pl, double *low, double *high)
 		*high = pl ? pl->range_high : 0.0;
 }
 
+double irr_peaklist_smoothing(const irr_peaklist *pl)
+{
+	return pl ? pl->smooth_cm : 0.0;
+}
+
 size_t irr_peaklist_saturated_count(const irr_peaklist *pl)
 {
 	return pl ? pl->nsat : 0;

@@ -129,6 +129,9 @@ double irr_peaklist_noise(const irr_peaklist *pl);   /* absorbance; 0 for lists 
 /* Measured range (cm-1). For a read peak list it is 400-4000 unless the
  * list says otherwise. */
 void irr_peaklist_range(const irr_peaklist *pl, double *low, double *high);
+/* Savitzky-Golay window the picker used, cm-1 (0 for lists read from
+ * files); with the auto setting it depends on the point spacing. */
+double irr_peaklist_smoothing(const irr_peaklist *pl);
 /* Saturated ranges copied from the spectrum (none for peak lists). */
 size_t irr_peaklist_saturated_count(const irr_peaklist *pl);
 void irr_peaklist_saturated_range(const irr_peaklist *pl, size_t i,

@@ -93,7 +93,8 @@ static double rnd(double v, double step)
 	return r == 0.0 ? 0.0 : r;
 }
 
-static char *render_json(const irr_spectrum *s, const irr_peaklist *pl, const char *path)
+static char *render_json(const irr_spectrum *s, const irr_peaklist *pl, const char *path,
+                         const irr_peak_options *po)
 {
 	cJSON *root = cJSON_CreateObject(), *sp, *arr, *pk;
 	char *txt;
@@ -135,6 +136,20 @@ static char *render_json(const irr_spectrum *s, const irr_peaklist *pl, const ch
 		cJSON_AddItemToArray(arr, r);
 	}
 	cJSON_AddNumberToObject(sp, "noise", irr_peaklist_noise(pl));
+	if (s) {
+		/* The thresholds used, so a result can be reproduced. */
+		cJSON *st = cJSON_AddObjectToObject(root, "settings");
+		cJSON_AddNumberToObject(st, "smooth_cm", rnd(irr_peaklist_smoothing(pl), 1e-3));
+		cJSON_AddNumberToObject(st, "min_snr", po->min_snr);
+		cJSON_AddNumberToObject(st, "min_rel_height", po->min_rel_height);
+		cJSON_AddNumberToObject(st, "strong_frac", po->strong_frac);
+		cJSON_AddNumberToObject(st, "medium_frac", po->medium_frac);
+		cJSON_AddNumberToObject(st, "broad_cm", po->broad_cm);
+		cJSON_AddBoolToObject(st, "shoulders", po->shoulders);
+		cJSON_AddNumberToObject(st, "shoulder_factor", po->shoulder_factor);
+		cJSON_AddNumberToObject(st, "shoulder_depth", po->shoulder_depth);
+		cJSON_AddBoolToObject(st, "baseline", po->baseline);
+	}
 	arr = cJSON_AddArrayToObject(root, "peaks");
 	for (size_t i = 0; i < irr_peaklist_count(pl); i++) {
 		const irr_peak *p = irr_peaklist_get(pl, i);
@@ -348,7 +363,7 @@ int cmd_peaks(int argc, char **argv)
 			goto done;
 		}
 	}
-	text = json ? render_json(s, pl, path) : render_table(s, pl, path);
+	text = json ? render_json(s, pl, path, &po) : render_table(s, pl, path);
 	if (!text) {
 		irr_error_set(&err, IRR_ENOMEM, path, 0, "out of memory while formatting");
 		rc = cli_fail(&err);
