@@ -541,10 +541,10 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		dx = (x0[n0 - 1] - x0[0]) / (double)(n0 - 1);
 	} else {
 		/* Resample at the median spacing; a file with large gaps could ask
-		 * for a huge grid, so the grid is capped at 4x the points given. */
+		 * for a huge grid, so the grid is capped at 2x the points given. */
 		double span = x0[n0 - 1] - x0[0];
 		double mf = floor(span / med) + 1.0;
-		size_t m = mf < (double)(4 * n0 + 16) ? (size_t)mf : 4 * n0 + 16;
+		size_t m = mf < (double)(2 * n0 + 16) ? (size_t)mf : 2 * n0 + 16;
 		n = m;
 		dx = span / (double)(n - 1);
 	}
