@@ -41,6 +41,9 @@ static const opt_def opts[] = {
 	{"--json", NULL, "print the JSON result (schema irrecon.check/1)"},
 	{"--output", "FILE", "write the report to FILE (replaced atomically)"},
 	{"--svg", "FILE", "also write the annotated plot to FILE (replaced atomically)"},
+	{"--block", "N", "compound JCAMP-DX file: use block N (1-based; default: the infrared one)"},
+	{"--max-bytes", "N", "refuse input files larger than N bytes (default 256 MiB)"},
+	{"--max-points", "N", "refuse spectra of more than N points (default 4,000,000)"},
 	{"--tables", "DIR", "group tables folder (default: the installed tables)"},
 	{"--add-table", "FILE", "an extra group table; repeatable"},
 	{"--request", "FILE", "run a JSON request (irrecon.request/1; '-' = stdin) and\n"
@@ -72,6 +75,18 @@ static void help(void)
 }
 
 /* ---- Shared with rank ---- */
+
+int cli_parse_count(const char *opt, const char *v, size_t *out)
+{
+	double num;
+	char *end;
+	(void)opt;
+	if (irr_parse_double(v, &end, &num) != IRR_OK || *end || !(num >= 1 && num <= 1e15) ||
+	    num != (double)(long long)num)
+		return -1;
+	*out = (size_t)num;
+	return 0;
+}
 
 int cli_read_structure_file(char **out, long *line_no, const char *path, irr_error *err)
 {
@@ -134,17 +149,25 @@ int cli_load_tables(irr_tables **out, const char *dir, char **extra, size_t next
 	return rc;
 }
 
-int cli_sha256_file(const char *path, char hex[65], irr_error *err)
+int cli_sha256_file(const char *path, size_t max_bytes, char hex[65], irr_error *err)
 {
 	unsigned char buf[65536], d[32];
 	irr_sha256 s;
-	size_t n;
+	size_t n, total = 0;
 	FILE *f = fopen(path, "rb");
 	if (!f)
 		return irr_error_set(err, IRR_EIO, path, 0, "cannot open: %s", strerror(errno));
 	irr_sha256_init(&s);
-	while ((n = fread(buf, 1, sizeof buf, f)) > 0)
+	while ((n = fread(buf, 1, sizeof buf, f)) > 0) {
+		total += n;
+		/* A file that grew, or a device without end: never hash forever. */
+		if (max_bytes && total > max_bytes) {
+			fclose(f);
+			return irr_error_set(err, IRR_ELIMIT, path, 0,
+			                     "larger than the limit of %zu bytes", max_bytes);
+		}
 		irr_sha256_update(&s, buf, n);
+	}
 	if (ferror(f)) {
 		fclose(f);
 		return irr_error_set(err, IRR_EIO, path, 0, "read error");
@@ -156,33 +179,39 @@ int cli_sha256_file(const char *path, char hex[65], irr_error *err)
 }
 
 int cli_check_set_input(irr_check *c, irr_check_options *o, const char *spectrum,
-                        const char *peaks, irr_error *err)
+                        const char *peaks, const irr_read_options *ro, irr_error *err)
 {
 	char hex[65];
 	const char *path = spectrum ? spectrum : peaks;
+	irr_spectrum *s = NULL;
+	irr_peaklist *pl = NULL;
+	size_t limit = ro && ro->max_bytes ? ro->max_bytes : ((size_t)256 << 20);
 	int rc;
-	if ((rc = cli_sha256_file(path, hex, err)))
+	/* Read first: the reader refuses what is not a spectrum (and devices
+	 * without end) quickly; only then hash the bytes it accepted. */
+	if (spectrum)
+		rc = irr_spectrum_read_file(&s, spectrum, ro, err);
+	else
+		rc = irr_peaklist_read_file(&pl, peaks, err);
+	if (rc)
 		return rc;
+	if ((rc = cli_sha256_file(path, limit, hex, err))) {
+		irr_spectrum_free(s);
+		irr_peaklist_free(pl);
+		return rc;
+	}
 	o->input_name = path;
 	o->input_sha256 = hex;
 	irr_check_set_options(c, o); /* copies the strings */
 	o->input_name = NULL;
 	o->input_sha256 = NULL;
-	if (spectrum) {
-		irr_spectrum *s = NULL;
-		if ((rc = irr_spectrum_read_file(&s, spectrum, NULL, err)))
-			return rc;
+	if (s) {
 		rc = irr_check_set_spectrum(c, s, err);
 		if (rc && err && !err->file[0])
 			irr_error_set(err, rc, spectrum, 0, "%s", err->message);
 		return rc;
 	}
-	{
-		irr_peaklist *pl = NULL;
-		if ((rc = irr_peaklist_read_file(&pl, peaks, err)))
-			return rc;
-		return irr_check_set_peaks(c, pl, err);
-	}
+	return irr_check_set_peaks(c, pl, err);
 }
 
 /* ---- check ---- */
@@ -310,6 +339,7 @@ int cmd_check(int argc, char **argv)
 	const char *output = NULL, *svg = NULL, *tables_dir = NULL, *request = NULL;
 	const char *sample = NULL;
 	int json = 0, list = 0, status = CLI_ERROR;
+	irr_read_options ro;
 	char **extra = NULL, *smiles_buf = NULL, *solv_file = NULL, *report = NULL, *plot = NULL;
 	size_t nextra = 0;
 	long structure_line = 0;
@@ -322,6 +352,7 @@ int cmd_check(int argc, char **argv)
 
 	irr_error_clear(&err);
 	irr_check_options_init(&o);
+	irr_read_options_init(&ro);
 	extra = calloc((size_t)argc + 1, sizeof *extra);
 	others = calloc((size_t)argc + 1, sizeof *others);
 	if (!extra || !others) {
@@ -373,6 +404,19 @@ int cmd_check(int argc, char **argv)
 		else if (!strcmp(a, "--add-table")) extra[nextra++] = (char *)v;
 		else if (!strcmp(a, "--request")) request = v;
 		else if (!strcmp(a, "--list-solvents")) list = 1;
+		else if (!strcmp(a, "--block") || !strcmp(a, "--max-bytes") || !strcmp(a, "--max-points")) {
+			size_t n;
+			if (cli_parse_count(a, v, &n) || (!strcmp(a, "--block") && n > 100000)) {
+				status = cli_usage_error("check", "%s needs a whole number >= 1, not '%s'", a, v);
+				goto out;
+			}
+			if (!strcmp(a, "--block"))
+				ro.block = (int)n;
+			else if (!strcmp(a, "--max-bytes"))
+				ro.max_bytes = n;
+			else
+				ro.max_points = n;
+		}
 	}
 	if (list) {
 		status = list_solvents(tables_dir);
@@ -413,7 +457,7 @@ int cmd_check(int argc, char **argv)
 	for (size_t k = 0; k < nothers; k++)
 		if (irr_check_add_other(c, others[k].kind, others[k].what, &err))
 			goto fail;
-	if (cli_check_set_input(c, &o, spectrum, peaks, &err) || irr_check_run(c, &err))
+	if (cli_check_set_input(c, &o, spectrum, peaks, &ro, &err) || irr_check_run(c, &err))
 		goto fail;
 	if ((json ? irr_report_json(&report, c) : irr_report_text(&report, c))) {
 		irr_error_set(&err, IRR_ENOMEM, "", 0, "cannot build the report");

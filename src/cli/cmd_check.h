@@ -15,13 +15,18 @@ int cli_read_structure_file(char **out, long *line_no, const char *path, irr_err
 int cli_load_tables(irr_tables **out, const char *dir, char **extra, size_t nextra,
                     char **solvents_file, irr_error *err);
 
-/* SHA-256 (hex) of a file. */
-int cli_sha256_file(const char *path, char hex[65], irr_error *err);
+/* SHA-256 (hex) of a file; more than max_bytes (0 = no limit) is an
+ * IRR_ELIMIT error. */
+int cli_sha256_file(const char *path, size_t max_bytes, char hex[65], irr_error *err);
 
-/* Reads the spectrum or peak list and hands it to the check, with the file
- * name and its SHA-256 in the options. Exactly one of spectrum/peaks. */
+/* A whole number >= 1 for --block, --max-bytes, --max-points: 0 or -1. */
+int cli_parse_count(const char *opt, const char *v, size_t *out);
+
+/* Reads the spectrum (with read options `ro`, may be NULL) or peak list and
+ * hands it to the check, with the file name and its SHA-256 in the options.
+ * Exactly one of spectrum/peaks. */
 int cli_check_set_input(irr_check *c, irr_check_options *o, const char *spectrum,
-                        const char *peaks, irr_error *err);
+                        const char *peaks, const irr_read_options *ro, irr_error *err);
 
 int cmd_check(int argc, char **argv);
 int cmd_rank(int argc, char **argv);

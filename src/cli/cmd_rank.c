@@ -36,6 +36,9 @@ static const opt_def opts[] = {
 	{"--sampling", "S", "atr (default) or transmission"},
 	{"--json", NULL, "print JSON (schema irrecon.rank/1)"},
 	{"--output", "FILE", "write to FILE (replaced atomically)"},
+	{"--block", "N", "compound JCAMP-DX file: use block N"},
+	{"--max-bytes", "N", "refuse input files larger than N bytes (default 256 MiB)"},
+	{"--max-points", "N", "refuse spectra of more than N points (default 4,000,000)"},
 	{"--tables", "DIR", "group tables folder"},
 	{"--add-table", "FILE", "an extra group table; repeatable"},
 	{"--help", NULL, "show this help"},
@@ -216,9 +219,11 @@ int cmd_rank(int argc, char **argv)
 	irr_tables *t = NULL;
 	irr_check *base = NULL;
 	irr_error err;
+	irr_read_options ro;
 
 	irr_error_clear(&err);
 	irr_check_options_init(&o);
+	irr_read_options_init(&ro);
 	extra = calloc((size_t)argc + 1, sizeof *extra);
 	others = calloc((size_t)argc + 1, sizeof *others);
 	cand = calloc(cap, sizeof *cand);
@@ -276,6 +281,19 @@ int cmd_rank(int argc, char **argv)
 		else if (!strcmp(a, "--output")) output = v;
 		else if (!strcmp(a, "--tables")) tables_dir = v;
 		else if (!strcmp(a, "--add-table")) extra[nextra++] = (char *)v;
+		else if (!strcmp(a, "--block") || !strcmp(a, "--max-bytes") || !strcmp(a, "--max-points")) {
+			size_t n;
+			if (cli_parse_count(a, v, &n) || (!strcmp(a, "--block") && n > 100000)) {
+				status = cli_usage_error("rank", "%s needs a whole number >= 1, not '%s'", a, v);
+				goto out;
+			}
+			if (!strcmp(a, "--block"))
+				ro.block = (int)n;
+			else if (!strcmp(a, "--max-bytes"))
+				ro.max_bytes = n;
+			else
+				ro.max_points = n;
+		}
 	}
 	if (!ncand) {
 		status = cli_usage_error("rank", "give at least one --candidate");
@@ -294,7 +312,7 @@ int cmd_rank(int argc, char **argv)
 	for (size_t k = 0; k < nothers; k++)
 		if (irr_check_add_other(base, others[k].kind, others[k].what, &err))
 			goto fail;
-	if (cli_check_set_input(base, &o, spectrum, peaks, &err))
+	if (cli_check_set_input(base, &o, spectrum, peaks, &ro, &err))
 		goto fail;
 	for (size_t i = 0; i < ncand; i++) {
 		char name[64];
