@@ -391,6 +391,10 @@ int irr_check_add_other(irr_check *c, irr_other_kind kind, const char *what,
 	if ((rc = ensure_lib(c, err)))
 		return rc;
 	o.solvent = irr_solvents_find(c->sl->lib, what);
+	/* The same SMILES as a library entry brings its tabulated bands too. */
+	for (size_t i = 0; !o.solvent && i < irr_solvents_count(c->sl->lib); i++)
+		if (!strcmp(irr_solvents_get(c->sl->lib, i)->smiles, what))
+			o.solvent = irr_solvents_get(c->sl->lib, i);
 	o.smiles = strdup(o.solvent ? o.solvent->smiles : what);
 	o.given = strdup(what);
 	if (!o.smiles || !o.given) {
@@ -1762,7 +1766,7 @@ int irr_check_run(irr_check *c, irr_error *err)
 		/* 9g. Supporting facts and notes. */
 		if (add_reason(c, "bands_found", 0, -1, -1, "%zu of %zu observable expected bands found%s",
 		               nfound, nobservable,
-		               decisive ? "" : ", including every diagnostic one"))
+		               decisive || key_seen < key_total ? "" : ", including every diagnostic one"))
 			goto nomem;
 		{
 			size_t nattr = 0;

@@ -708,6 +708,23 @@ static void json_is_deterministic_and_complete(void **state)
 			if (!strstr(j1, keys[k]))
 				fail_msg("JSON lacks %s", keys[k]);
 	}
+	/* Running again gives the same result. */
+	{
+		irr_error err;
+		char *j3 = NULL;
+		assert_int_equal(irr_check_run(c2, &err), IRR_OK);
+		assert_int_equal(irr_report_json(&j3, c2), IRR_OK);
+		assert_string_equal(j1, j3);
+		free(j3);
+	}
+	/* "ethyl acetate" by name and by its SMILES reach the same entry. */
+	{
+		irr_check *c3 = run_check("OC(=O)c1ccccc1", NULL, peaks_from(benzoic_acid),
+		                          IRR_SAMPLING_TRANSMISSION, "solvent", "CCOC(C)=O");
+		assert_non_null(irr_check_other(c3, 0)->name);
+		assert_string_equal(irr_check_other(c3, 0)->name, "ethyl acetate");
+		irr_check_free(c3);
+	}
 	assert_int_equal(irr_report_text(&t, c1), IRR_OK);
 	for (char *p = t; *p;) {
 		size_t n = strcspn(p, "\n");
