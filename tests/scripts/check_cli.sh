@@ -48,6 +48,29 @@ co = [e for e in d["expected"] if e["label"].startswith("C=O")]
 assert co and co[0]["status"] == "found" and abs(co[0]["peak"] - 1687) < 0.01
 PY
 
+# Every key the result can carry is documented in the schema document.
+"$B" check --structure 'OC(=O)c1ccccc1' --peaks "$ACID" --starting-material 'CC(=O)c1ccccc1' \
+	--reagent 'O=C(Cl)c1ccccc1' --solvent THF --json > "$T/full.json"
+/usr/bin/python3 - "$T/full.json" docs/check-result-schema.md <<'PY' || fail "undocumented JSON keys"
+import json, re, sys
+d = json.load(open(sys.argv[1]))
+doc = open(sys.argv[2]).read()
+keys = set()
+def walk(v):
+    if isinstance(v, dict):
+        for k, x in v.items():
+            keys.add(k)
+            walk(x)
+    elif isinstance(v, list):
+        for x in v:
+            walk(x)
+walk(d)
+missing = sorted(k for k in keys if "`%s`" % k not in doc)
+if missing:
+    print("not in docs/check-result-schema.md:", missing)
+    sys.exit(1)
+PY
+
 # A named solvent from the library; --output and --output atomicity.
 expect_rc 0 "$B" check --structure 'OC(=O)c1ccccc1' --peaks "$ACID" --solvent 'ethyl acetate' --json --output "$T/r.json"
 [ -s "$T/r.json" ] && [ ! -s "$T/out" ] || fail "--output did not take the report"
