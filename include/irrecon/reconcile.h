@@ -109,7 +109,8 @@ void irr_check_free(irr_check *c);
 int irr_check_clone_inputs(irr_check **out, const irr_check *src, irr_error *err);
 
 /* Copies the option values and strings. Call before set_spectrum so that
- * the peak options apply. */
+ * the peak options apply. A different solvents_file takes effect only
+ * while no substance has been added. */
 void irr_check_set_options(irr_check *c, const irr_check_options *o);
 
 /* The proposed structure. Parses and perceives at once: a bad SMILES is
@@ -149,9 +150,10 @@ irr_verdict irr_check_verdict(const irr_check *c);
 double irr_check_score(const irr_check *c);   /* 0..1, higher agrees better */
 
 /* A reason, most important first. `code` is a stable token:
- *   missing_band, unexplained_band, saturated_unexplained, other_present,
- *   other_absent, unobservable, noisy, no_bands, rule, attributed_band,
- *   moisture, atmosphere, bands_found. */
+ *   missing_band, unexplained_band, saturated_unexplained, rule,
+ *   other_present, other_absent, other_cannot_tell, unobservable, noisy,
+ *   no_bands, bands_found, attributed_band, moisture, atmosphere.
+ * Decisive reasons come first. */
 typedef struct irr_reason {
 	const char *code;
 	const char *text;       /* plain words, one line */
