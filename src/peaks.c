@@ -730,6 +730,31 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		}
 	}
 
+	/* The rubber band rests on the lowest dips of the noise, a few noise
+	 * sd below the baseline's true level, which would add that much to
+	 * every height (and widen weak bands, whose half height it lowers).
+	 * Re-centre: the mean of the points that lie within 2.5 sd of the
+	 * band (iterated, starting from the band itself) is the noise's own
+	 * centre; it is taken off the trace. Without noise it is 0. */
+	if (o->baseline) {
+		double off = 0.0, gain0 = irr_sg__noise_gain(half, order, 0);
+		for (int it = 0; it < 3; it++) {
+			double sum = 0.0;
+			size_t cnt = 0;
+			for (size_t i = 0; i < n; i++)
+				if (!(w.satm[i] & 1) && w.c[i] < off + 2.5 * gain0 * NOISE_AT(w, i)) {
+					sum += w.c[i];
+					cnt++;
+				}
+			off = cnt ? sum / (double)cnt : 0.0;
+		}
+		if (off > 0.0)
+			for (size_t i = 0; i < n; i++) {
+				w.c[i] -= off;
+				w.r[i] -= off;
+			}
+	}
+
 	pl = irr_peaks__new();
 	if (!pl) {
 		rc = irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
@@ -869,15 +894,26 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 					p.fwhm = 0.0;
 					p.low = p.high = p.position;
 				}
-				if (p.fwhm >= 2.0 * (2 * half) * dx)
+				/* A faint band (prominence under 50 noise sd) keeps the
+				 * smoothed width: on the raw trace noise would move its
+				 * crossings by more than the filter widens it. */
+				if (p.fwhm >= 2.0 * (2 * half) * dx || p.prominence < 50.0 * NOISE_AT(w, i))
 					break;
 			}
-			/* Broad bands (>= 12 points wide): the vertex of a parabola
-			 * fitted over the top +-0.3 FWHM, re-centred once. */
+			/* Bands much wider than the smoothing window (or 8 points), or
+			 * faint ones
+			 * (prominence under 50 noise sd), have a top whose noise moves
+			 * the three-point maximum by more than a fit's bias: there the
+			 * vertex of a parabola fitted over the top +-0.4 FWHM,
+			 * re-centred once (at least 9 points). Clear, narrower bands
+			 * keep the three-point maximum, which for an asymmetric band
+			 * is the observed one. */
 			{
-				double mf = floor(0.3 * p.fwhm / dx);
+				double mf = floor(0.4 * p.fwhm / dx);
 				size_t m = mf >= 4.0 && mf < (double)n ? (size_t)mf : 0;
-				if (m >= 4 && !p.shoulder) {
+				int wide = p.fwhm >= 4.0 * (half > 4 ? 2 * half : 8) * dx;
+				int faint = p.prominence < 50.0 * NOISE_AT(w, i);
+				if (m >= 4 && !p.shoulder && (wide || faint)) {
 					double v = vertex_fit(w.c, i, m, lv, rv);
 					if (!isnan(v)) {
 						double t = (double)i + v, tc = floor(t + 0.5);

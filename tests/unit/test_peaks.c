@@ -279,21 +279,36 @@ static void no_false_peaks_in_noise(void **state)
 static void weak_band_just_above_threshold_is_found(void **state)
 {
 	(void)state;
-	/* A band whose height is 20 noise sd (well above min_snr 5 on the
-	 * smoothed trace) next to a strong one. */
+	/* A band whose height is 20 noise sd (four times min_snr) next to a
+	 * strong one, over 20 noise seeds: found and classed weak. */
 	band b[] = {{1700.0, 1.0, 15.0, 0}, {1200.0, 0.04, 15.0, 0}};
 	size_t n = 3601;
 	double x[3601], y[3601];
 	irr_peak_options o;
 	irr_peaklist *pl;
 	irr_peak_options_init(&o);
-	rng_seed(7);
-	make(x, y, n, 400.0, 1.0, b, 2, 0.002, NULL);
-	pl = pick(x, y, n, &o);
-	assert_int_equal(irr_peaklist_count(pl), 2);
-	assert_true(fabs(nearest(pl, 1200.0)->position - 1200.0) < 0.5);
-	assert_int_equal(nearest(pl, 1200.0)->intensity, IRR_INT_WEAK);
-	irr_peaklist_free(pl);
+	for (uint64_t seed = 7; seed < 27; seed++) {
+		rng_seed(seed);
+		make(x, y, n, 400.0, 1.0, b, 2, 0.002, NULL);
+		pl = pick(x, y, n, &o);
+		/* Measured over these seeds: position rms 0.2 cm-1, width rms
+		 * 6 %; the limits are about 3.5 sd. */
+		if (irr_peaklist_count(pl) != 2 || fabs(nearest(pl, 1200.0)->position - 1200.0) >= 0.75)
+			fprintf(stderr, "seed %llu: %zu peaks, weak one at %.3f\n", (unsigned long long)seed,
+			        irr_peaklist_count(pl), nearest(pl, 1200.0)->position);
+		assert_int_equal(irr_peaklist_count(pl), 2);
+		assert_true(fabs(nearest(pl, 1200.0)->position - 1200.0) < 0.75);
+		/* At a signal-to-noise of 20 each half-height crossing moves by
+		 * about noise / slope = 0.002 / (0.04 / 15) = 0.75 cm-1 (before
+		 * smoothing), so the width is asked within 20 % here (10 % at the
+		 * SNR of the isolated-band tests). */
+		if (fabs(nearest(pl, 1200.0)->fwhm - 15.0) >= 0.20 * 15.0)
+			fprintf(stderr, "seed %llu: weak one fwhm %.3f\n", (unsigned long long)seed,
+			        nearest(pl, 1200.0)->fwhm);
+		assert_true(fabs(nearest(pl, 1200.0)->fwhm - 15.0) < 0.20 * 15.0);
+		assert_int_equal(nearest(pl, 1200.0)->intensity, IRR_INT_WEAK);
+		irr_peaklist_free(pl);
+	}
 }
 
 /* ---- overlapping pairs ---------------------------------------------------- */
