@@ -8,23 +8,27 @@
  *  2. Savitzky-Golay smoothing and second derivative (Savitzky & Golay,
  *     Anal. Chem. 36 (1964) 1627; see sgfilter.c);
  *  3. baseline: the lower convex hull of the smoothed trace ("rubber band",
- *     common practice in IR software; e.g. described in H. G. Schulze et
- *     al., Appl. Spectrosc. 59 (2005) 545, on baseline methods). It is
- *     O(n) by Andrew's monotone chain (A. M. Andrew, Inf. Process. Lett. 9
- *     (1979) 216) because x is already sorted;
+ *     common practice in IR software; reviewed with other methods by H. G.
+ *     Schulze et al., Appl. Spectrosc. 59 (2005) 545, from memory), O(n) by
+ *     Andrew's monotone chain (A. M. Andrew, Inf. Process. Lett. 9 (1979)
+ *     216, from memory) because x is already sorted; then lifted to the
+ *     centre of the noise it rests on;
  *  4. noise: the median absolute second difference of the raw trace, scaled
- *     to a standard deviation (MAD x 1.4826 / sqrt 6 for white noise; a
- *     robust estimator, Hampel, J. Am. Stat. Assoc. 69 (1974) 383), taken
- *     per block so that noisier stretches (low transmittance) get their own
- *     level;
+ *     to a standard deviation (MAD x 1.4826 / sqrt 6 for white noise; the
+ *     MAD as a robust scale, F. R. Hampel, J. Am. Stat. Assoc. 69 (1974)
+ *     383, from memory), per block so that noisier stretches (low
+ *     transmittance) get their own level, with the filtered second
+ *     derivative's spread as a check on correlated noise;
  *  5. maxima of the smoothed, baseline-corrected trace kept by topographic
  *     prominence (height above the higher of the two lowest points that
  *     separate it from higher ground), computed for all points at once with
  *     a monotonic stack;
  *  6. position by three-point interpolation (Gaussian, i.e. a parabola
  *     through the logarithms, when the three values are positive; else a
- *     parabola), FWHM by linear interpolation at half height, area by the
- *     trapezoidal rule between the valleys that separate neighbours;
+ *     parabola), or for wide or faint bands the vertex of a least-squares
+ *     parabola over the top; FWHM by linear interpolation at half height
+ *     (on the unsmoothed trace for bands the filter could widen); area by
+ *     the trapezoidal rule between the valleys that separate neighbours;
  *  7. shoulders: separate lobes (minima) of the second derivative that do
  *     not belong to a kept maximum;
  *  8. saturated ranges from the spectrum become saturated peaks. */
