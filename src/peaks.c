@@ -745,11 +745,15 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		for (int it = 0; it < 3; it++) {
 			double sum = 0.0;
 			size_t cnt = 0;
-			for (size_t i = 0; i < n; i++)
-				if (!(w.satm[i] & 1) && w.c[i] < off + 2.5 * gain0 * NOISE_AT(w, i)) {
-					sum += w.c[i];
-					cnt++;
-				}
+			for (size_t b = 0; b < nb; b++) {
+				double thr = off + 2.5 * gain0 * w.bsn[b];
+				size_t e = (b + 1) * NOISE_BLOCK < n ? (b + 1) * NOISE_BLOCK : n;
+				for (size_t i = b * NOISE_BLOCK; i < e; i++)
+					if (w.c[i] < thr && !(w.satm[i] & 1)) {
+						sum += w.c[i];
+						cnt++;
+					}
+			}
 			off = cnt ? sum / (double)cnt : 0.0;
 		}
 		if (off > 0.0)
