@@ -34,6 +34,7 @@
 #define SPIKE_FWHM        6.0   /* narrower unexplained peaks never decide alone */
 #define HBOND_FWHM        150.0 /* an O-H/N-H band this wide is hydrogen-bonded */
 #define MAX_CANDIDATES    4
+#define MAX_LISTED        5     /* non-decisive unexplained bands named in reasons */
 #define NOISY_FRAC        0.08  /* noise above this fraction of the strongest peak */
 
 static const char CAUTION_EVIDENCE[] =
@@ -895,6 +896,20 @@ static double decisive_strength(const irr_check *c, const irr_peak *p)
 	return s;
 }
 
+static int reason_rank(const irr_check *c, const irr_reason *r)
+{
+	if (r->decisive)
+		return 0;
+	if (c->verdict == IRR_VERDICT_INCONSISTENT)
+		return 4;
+	if (!strcmp(r->code, "bands_found") || !strcmp(r->code, "unobservable") ||
+	    !strcmp(r->code, "noisy") || !strcmp(r->code, "no_bands"))
+		return 1;
+	if (!strcmp(r->code, "other_present") || !strcmp(r->code, "rule"))
+		return 2;
+	return 4;
+}
+
 /* ---- The run ---- */
 
 int irr_check_run(irr_check *c, irr_error *err)
@@ -1555,6 +1570,7 @@ int irr_check_run(irr_check *c, irr_error *err)
 				size_t t = order[b];
 				order[b] = order[b - 1], order[b - 1] = t;
 			}
+		size_t listed = 0, unlisted = 0;
 		for (size_t pass = 0; pass < 2; pass++)
 			for (size_t a = 0; a < no; a++) {
 				const irr_observed *o = &c->obs[order[a]];
@@ -1580,6 +1596,12 @@ int irr_check_run(irr_check *c, irr_error *err)
 				}
 				if (pass == 1 && p->intensity == IRR_INT_WEAK)
 					continue;
+				/* Non-decisive ones: the five strongest by name, the rest
+				 * counted (all are in the observed list). */
+				if (pass == 1 && listed >= MAX_LISTED) {
+					unlisted++;
+					continue;
+				}
 				if (o->ncandidates) {
 					size_t n = strlen(cl);
 					snprintf(cl + n, sizeof cl - n, " (could be: ");
@@ -1592,12 +1614,18 @@ int irr_check_run(irr_check *c, irr_error *err)
 				}
 				if (dec)
 					decisive = 1;
+				if (pass == 1)
+					listed++;
 				if (add_reason(c, p->saturated ? "saturated_unexplained" : "unexplained_band",
 				               dec, -1, (long)order[a], "%s%s band at %s cm-1 is explained by nothing given%s",
 				               p->saturated ? "saturated (strong)" : irr_intensity_name(p->intensity),
 				               p->broad ? " broad" : "", fmtw(w1, sizeof w1, p->position), cl))
 					goto nomem;
 			}
+		if (unlisted && add_reason(c, "unexplained_band", 0, -1, -1,
+		                           "%zu more medium or strong band%s that nothing given explains (see the observed bands)",
+		                           unlisted, unlisted == 1 ? "" : "s"))
+			goto nomem;
 		free(order);
 		order = NULL;
 
@@ -1811,9 +1839,11 @@ int irr_check_run(irr_check *c, irr_error *err)
 		c->score = floor(c->score * 1000.0 + 0.5) / 1000.0;
 	}
 
-	/* Decisive reasons first, each group in the order found. */
+	/* Most important first: decisive reasons; otherwise what supports the
+	 * verdict (bands found, a substance present, rules), then the rest;
+	 * each group in the order found (stable insertion sort). */
 	for (size_t a = 1; a < c->nreasons; a++)
-		for (size_t b = a; b > 0 && c->reasons[b].decisive && !c->reasons[b - 1].decisive; b--) {
+		for (size_t b = a; b > 0 && reason_rank(c, &c->reasons[b]) < reason_rank(c, &c->reasons[b - 1]); b--) {
 			irr_reason t = c->reasons[b];
 			c->reasons[b] = c->reasons[b - 1];
 			c->reasons[b - 1] = t;
