@@ -301,6 +301,19 @@ int extract(irr_obshim_mol *m, size_t max_heavy, irr_obshim_graph *g, char *why,
 		          " heavy atoms, more than the limit of " + std::to_string(max_heavy));
 		return IRR_ELIMIT;
 	}
+	/* Without a multiple bond in any ring nothing can be aromatic; telling
+	 * Open Babel so spares its aromaticity perception, which is slow on
+	 * large saturated polycycles (seconds for a few hundred rings). */
+	if (!mol.HasAromaticPerceived()) {
+		bool ring_pi = false;
+		FOR_BONDS_OF_MOL(b, mol)
+			if (b->GetBondOrder() > 1 && b->IsInRing()) {
+				ring_pi = true;
+				break;
+			}
+		if (!ring_pi)
+			mol.SetAromaticPerceived();
+	}
 	g->natoms = nheavy;
 	g->atoms = static_cast<irr_atom *>(std::calloc(nheavy ? nheavy : 1, sizeof(irr_atom)));
 	if (!g->atoms)

@@ -93,7 +93,151 @@ typedef struct syntax_info {
 	long natoms;
 	long *pred;
 	size_t pcap;
+	/* ring-bond pairs (atom indices as in pred) */
+	long *ring_pairs;
+	size_t nring_pairs, rcap;
 } syntax_info;
+
+static int note_ring_bond(syntax_info *si, long a, long b)
+{
+	if (si->nring_pairs == si->rcap) {
+		size_t ncap = si->rcap ? 2 * si->rcap : 32;
+		long *p = realloc(si->ring_pairs, 2 * ncap * sizeof *p);
+		if (!p)
+			return IRR_ENOMEM;
+		si->ring_pairs = p;
+		si->rcap = ncap;
+	}
+	si->ring_pairs[2 * si->nring_pairs] = a;
+	si->ring_pairs[2 * si->nring_pairs + 1] = b;
+	si->nring_pairs++;
+	return IRR_OK;
+}
+
+static long uf_find(long *parent, long x)
+{
+	while (parent[x] != x) {
+		parent[x] = parent[parent[x]];
+		x = parent[x];
+	}
+	return x;
+}
+
+/* The number of independent rings (cyclomatic number, edges - vertices + 1)
+ * of the largest ring system: bridges found by an iterative depth-first
+ * search (Tarjan 1974), the rest grouped by union-find. Open Babel's
+ * aromaticity perception grows about with the cube of this number, so it
+ * is limited before Open Babel sees the molecule. */
+static int largest_ring_system(const syntax_info *si, long *out)
+{
+	long n = si->natoms, m = 0;
+	int rc = IRR_ENOMEM;
+	*out = 0;
+	if (n == 0)
+		return IRR_OK;
+	for (long v = 0; v < n; v++)
+		m += si->pred[v] >= 0;
+	m += (long)si->nring_pairs;
+	long *ea = malloc((size_t)(m ? m : 1) * sizeof *ea), *eb = malloc((size_t)(m ? m : 1) * sizeof *eb);
+	long *start = calloc((size_t)n + 1, sizeof *start), *adj = malloc((size_t)(2 * m + 1) * sizeof *adj);
+	long *disc = malloc((size_t)n * sizeof *disc), *low = malloc((size_t)n * sizeof *low);
+	long *pedge = malloc((size_t)n * sizeof *pedge), *iter = malloc((size_t)n * sizeof *iter);
+	long *stack = malloc((size_t)n * sizeof *stack), *parent = malloc((size_t)n * sizeof *parent);
+	long *ve = calloc((size_t)n, sizeof *ve), *vn = calloc((size_t)n, sizeof *vn);
+	unsigned char *bridge = calloc((size_t)(m ? m : 1), 1);
+	if (!ea || !eb || !start || !adj || !disc || !low || !pedge || !iter || !stack || !parent ||
+	    !ve || !vn || !bridge)
+		goto done;
+	long k = 0;
+	for (long v = 0; v < n; v++)
+		if (si->pred[v] >= 0) {
+			ea[k] = si->pred[v];
+			eb[k++] = v;
+		}
+	for (size_t r = 0; r < si->nring_pairs; r++) {
+		ea[k] = si->ring_pairs[2 * r];
+		eb[k++] = si->ring_pairs[2 * r + 1];
+	}
+	for (long e = 0; e < m; e++) {
+		start[ea[e] + 1]++;
+		start[eb[e] + 1]++;
+	}
+	for (long v = 0; v < n; v++)
+		start[v + 1] += start[v];
+	for (long v = 0; v < n; v++)
+		iter[v] = start[v];
+	for (long e = 0; e < m; e++) {
+		adj[iter[ea[e]]++] = e;
+		adj[iter[eb[e]]++] = e;
+	}
+	for (long v = 0; v < n; v++) {
+		disc[v] = -1;
+		iter[v] = start[v];
+	}
+	long time = 0;
+	for (long root = 0; root < n; root++) {
+		if (disc[root] >= 0)
+			continue;
+		long top = 0;
+		stack[top++] = root;
+		disc[root] = low[root] = time++;
+		pedge[root] = -1;
+		while (top > 0) {
+			long v = stack[top - 1];
+			if (iter[v] < start[v + 1]) {
+				long e = adj[iter[v]++];
+				if (e == pedge[v])
+					continue;
+				long w = ea[e] == v ? eb[e] : ea[e];
+				if (disc[w] < 0) {
+					disc[w] = low[w] = time++;
+					pedge[w] = e;
+					stack[top++] = w;
+				} else if (disc[w] < low[v]) {
+					low[v] = disc[w];
+				}
+			} else {
+				top--;
+				if (pedge[v] >= 0) {
+					long u = ea[pedge[v]] == v ? eb[pedge[v]] : ea[pedge[v]];
+					if (low[v] < low[u])
+						low[u] = low[v];
+					if (low[v] > disc[u])
+						bridge[pedge[v]] = 1;
+				}
+			}
+		}
+	}
+	for (long v = 0; v < n; v++)
+		parent[v] = v;
+	for (long e = 0; e < m; e++)
+		if (!bridge[e])
+			parent[uf_find(parent, ea[e])] = uf_find(parent, eb[e]);
+	for (long e = 0; e < m; e++)
+		if (!bridge[e])
+			ve[uf_find(parent, ea[e])]++;
+	for (long v = 0; v < n; v++)
+		vn[uf_find(parent, v)]++;
+	for (long v = 0; v < n; v++)
+		if (ve[v] > 0 && ve[v] - vn[v] + 1 > *out)
+			*out = ve[v] - vn[v] + 1;
+	rc = IRR_OK;
+done:
+	free(ea);
+	free(eb);
+	free(start);
+	free(adj);
+	free(disc);
+	free(low);
+	free(pedge);
+	free(iter);
+	free(stack);
+	free(parent);
+	free(ve);
+	free(vn);
+	free(bridge);
+	return rc;
+}
 
 /* Records a new atom bonded (through the chain) to `cur`; returns its
  * index or -1 when out of memory. */
@@ -290,6 +434,9 @@ static int check_syntax(const char *s, syntax_info *si, char *why, size_t why_si
 		} else if ((c >= '0' && c <= '9') || c == '%') {
 			int num;
 			if (c == '%') {
+				if (s[i + 1] == '(')
+					FAIL("ring-bond number '%%(...)' at position %zu: only %%10 to %%99 are "
+					     "supported", at);
 				if (!(s[i + 1] >= '0' && s[i + 1] <= '9' && s[i + 2] >= '0' && s[i + 2] <= '9'))
 					FAIL("'%%' at position %zu needs two digits", at);
 				num = (s[i + 1] - '0') * 10 + (s[i + 2] - '0');
@@ -305,6 +452,8 @@ static int check_syntax(const char *s, syntax_info *si, char *why, size_t why_si
 			} else {
 				long other = ring_open[num];
 				ring_open[num] = -1;
+				if ((rc = note_ring_bond(si, other, cur)) != IRR_OK)
+					goto done;
 				if (other == cur)
 					FAIL("ring bond '%.*s' at position %zu joins an atom to itself",
 					     c == '%' ? 3 : 1, s + i, at);
@@ -586,6 +735,15 @@ int irr_molecule_from_smiles(irr_molecule **out, const char *smiles, const char 
 		         heavy, IRR_MAX_HEAVY_ATOMS);
 		rc = IRR_ELIMIT;
 	}
+	if (rc == IRR_OK) {
+		long rings = 0;
+		rc = largest_ring_system(&si, &rings);
+		if (rc == IRR_OK && rings > IRR_MAX_RING_SYSTEM) {
+			snprintf(why, sizeof why, "a ring system of %ld fused or bridged rings, more "
+			         "than the limit of %d", rings, IRR_MAX_RING_SYSTEM);
+			rc = IRR_ELIMIT;
+		}
+	}
 	if (rc == IRR_OK)
 		rc = irr_obshim__read_smiles(m->smiles, IRR_MAX_HEAVY_ATOMS, &ob, &g, why, sizeof why);
 	if (rc != IRR_OK) {
@@ -640,6 +798,7 @@ int irr_molecule_from_smiles(irr_molecule **out, const char *smiles, const char 
 	free(si.aromatic);
 	free(si.pos);
 	free(si.pred);
+	free(si.ring_pairs);
 	*out = m;
 	return IRR_OK;
 
@@ -647,6 +806,7 @@ fail:
 	free(si.aromatic);
 	free(si.pos);
 	free(si.pred);
+	free(si.ring_pairs);
 	irr_obshim__graph_release(&g);
 	irr_obshim__mol_free(ob);
 	irr_molecule_free(m);

@@ -19,6 +19,12 @@ extern "C" {
 
 /* Largest molecule accepted (heavy atoms); larger input is IRR_ELIMIT. */
 #define IRR_MAX_HEAVY_ATOMS 5000
+/* Largest ring system accepted: independent rings (cyclomatic number) in
+ * one fused or bridged system; C60 has 31, a steroid 4. Open Babel's
+ * aromaticity perception slows with about the cube of this number (about
+ * 1 s for 190 rings), so larger systems are IRR_ELIMIT. Separate rings
+ * (a polyphenylene chain) are not limited by this. */
+#define IRR_MAX_RING_SYSTEM 120
 
 typedef struct irr_atom {
 	int element;        /* atomic number; 0 for '*' (attachment point) */

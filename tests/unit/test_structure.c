@@ -312,6 +312,55 @@ static void large_molecules_and_the_limit(void **state)
 	free(s);
 }
 
+/* A ladder of n carbons, each bonded to the next two (ring-bond digits
+ * reused 1-3): n - 2 fused three-membered rings in one ring system. */
+static char *ring_ladder(int n)
+{
+	char *s = malloc((size_t)n * 3 + 1), *p = s;
+	assert_non_null(s);
+	for (int i = 0; i < n; i++) {
+		*p++ = 'C';
+		if (i >= 2)
+			*p++ = (char)('1' + (i - 2) % 3);
+		if (i + 2 < n)
+			*p++ = (char)('1' + i % 3);
+	}
+	*p = '\0';
+	return s;
+}
+
+static void ring_system_limit(void **state)
+{
+	(void)state;
+	/* 98 fused rings: accepted, and the SSSR has all of them. */
+	char *s = ring_ladder(100);
+	irr_molecule *m = parse_ok(s);
+	assert_int_equal(irr_molecule_ring_count(m), 98);
+	irr_molecule_free(m);
+	free(s);
+	/* 122 fused rings: over IRR_MAX_RING_SYSTEM, a clear limit error. */
+	s = ring_ladder(124);
+	irr_error err;
+	irr_error_clear(&err);
+	m = NULL;
+	assert_int_equal(irr_molecule_from_smiles(&m, s, "SMILES", &err), IRR_ELIMIT);
+	assert_null(m);
+	assert_non_null(strstr(err.message, "122 fused or bridged rings"));
+	free(s);
+	/* 400 separate benzene rings (polyphenylene) are not one system. */
+	size_t n = 400;
+	s = malloc(n * 10 + 2);
+	assert_non_null(s);
+	s[0] = '\0';
+	for (size_t i = 0; i < n; i++)
+		strcat(s, "c1ccc(cc1)");
+	strcat(s, "C");
+	m = parse_ok(s);
+	assert_int_equal(irr_molecule_ring_count(m), 400);
+	irr_molecule_free(m);
+	free(s);
+}
+
 static void smarts_matching(void **state)
 {
 	(void)state;
@@ -375,6 +424,7 @@ int main(void)
 		cmocka_unit_test(cis_trans_from_smiles),
 		cmocka_unit_test(bad_smiles_are_input_errors),
 		cmocka_unit_test(large_molecules_and_the_limit),
+		cmocka_unit_test(ring_system_limit),
 		cmocka_unit_test(smarts_matching),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
