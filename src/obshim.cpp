@@ -307,7 +307,11 @@ int extract(irr_obshim_mol *m, size_t max_heavy, irr_obshim_graph *g, char *why,
 	if (!mol.HasAromaticPerceived()) {
 		bool ring_pi = false;
 		FOR_BONDS_OF_MOL(b, mol)
-			if (b->GetBondOrder() > 1 && b->IsInRing()) {
+			if (b->IsInRing() && (b->GetBondOrder() > 1 ||
+			                      b->GetBeginAtom()->GetAtomicNum() == 5 ||
+			                      b->GetEndAtom()->GetAtomicNum() == 5)) {
+				/* (boron's empty p orbital makes B-N rings such as
+				 * borazine aromatic without a multiple bond) */
 				ring_pi = true;
 				break;
 			}
