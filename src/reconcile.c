@@ -1090,6 +1090,30 @@ int irr_check_run(irr_check *c, irr_error *err)
 		}
 	}
 
+	/* 4b. Below the noise: a missing band whose class would put it under
+	 * the picker's detection limit (min_snr x noise, relative to the
+	 * strongest peak) could not have been seen. */
+	{
+		double noise = irr_peaklist_noise(pl), top = 0;
+		for (size_t j = 0; j < np; j++)
+			if (c->obs[j].peak->height > top)
+				top = c->obs[j].peak->height;
+		if (noise > 0) {
+			double limit = top > 0 ? c->opt.peaks.min_snr * noise / top : 1e9;
+			for (size_t i = 0; i < ne; i++) {
+				irr_expected *e = &c->exp[i];
+				int ec = c->eclass[i];
+				double least = ec >= 3 ? c->opt.peaks.strong_frac
+				             : ec == 2 ? c->opt.peaks.medium_frac
+				             : c->opt.peaks.min_rel_height;
+				if (e->status == IRR_BAND_MISSING && limit > least) {
+					e->status = IRR_BAND_UNOBSERVABLE;
+					e->note = "weaker than the noise allows to see";
+				}
+			}
+		}
+	}
+
 	/* 5. Peaks not assigned: extra structure of the product's own bands. A
 	 * second peak inside a window is the product's when it is weak, in the
 	 * fingerprint or C-H stretching region, or the group occurs several
@@ -1753,7 +1777,7 @@ int irr_check_run(irr_check *c, irr_error *err)
 
 		/* 9f. Inconclusive? */
 		{
-			int inconclusive = 0;
+			int inconclusive = 0, noisy = 0;
 			if (ne == 0) {
 				inconclusive = 1;
 				if (add_reason(c, "no_bands", 0, -1, -1,
@@ -1775,13 +1799,18 @@ int irr_check_run(irr_check *c, irr_error *err)
 						top = c->obs[j].peak->height;
 				if (top > 0 && irr_peaklist_noise(pl) > NOISY_FRAC * top) {
 					inconclusive = 1;
+					noisy = 1;
 					if (add_reason(c, "noisy", 0, -1, -1,
 					               "the noise is %s%% of the strongest band: too noisy to decide",
 					               fmtw(w1, sizeof w1, 100 * irr_peaklist_noise(pl) / top)))
 						goto nomem;
 				}
 			}
-			if (decisive)
+			/* Too noisy: nothing it shows or lacks can decide. */
+			if (noisy)
+				for (size_t q = 0; q < c->nreasons; q++)
+					c->reasons[q].decisive = 0;
+			if (decisive && !noisy)
 				c->verdict = IRR_VERDICT_INCONSISTENT;
 			else if (inconclusive)
 				c->verdict = IRR_VERDICT_INCONCLUSIVE;
@@ -1826,7 +1855,13 @@ int irr_check_run(irr_check *c, irr_error *err)
 			      c->obs[j].attributed_kind >= IRR_SOURCE_ATMOSPHERE))
 				sig_w += c->obs[j].weight;
 		u = sig_w > 0 ? unexpl_w / sig_w : 0.0;
-		double a = den > 0 ? found_w / den * (1.0 - 0.5 * u) : 0.0;
+		double unseen = 0, a;
+		for (size_t i = 0; i < ne; i++)
+			if (c->exp[i].status == IRR_BAND_UNOBSERVABLE)
+				unseen += c->exp[i].weight;
+		/* ... and by the share of the expected weight that could not be
+		 * observed at all (out of range, hidden, below the noise). */
+		a = den > 0 ? found_w / den * (1.0 - 0.5 * u) * (den / (den + unseen)) : 0.0;
 		/* The verdict sets the band: consistent (also impure) 0.5-1,
 		 * inconclusive 0-0.5, inconsistent 0-0.49; agreement places the
 		 * score inside it, so that ranking by score keeps verdicts apart. */

@@ -26,6 +26,7 @@
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
+#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -684,6 +685,44 @@ static void key_windows_out_of_range_is_inconclusive(void **state)
 	irr_check_free(c);
 }
 
+/* Noise: the real polystyrene ATR spectrum (strongest band 0.26 A) with
+ * seeded Gaussian noise. At sigma 0.03 A (over 8 % of the strongest band)
+ * the check cannot decide; the weaker ring modes are never called missing
+ * because of noise. */
+static void too_noisy_is_inconclusive(void **state)
+{
+	irr_spectrum *s, *noisy = NULL;
+	irr_error err;
+	irr_check *c;
+	uint32_t seed = 12345u;
+	size_t n;
+	double *y;
+	(void)state;
+	NEED_REF();
+	s = read_ref("polystyrene-atr.csv");
+	assert_int_equal(irr_spectrum_normalise(s, &err), IRR_OK);
+	n = irr_spectrum_points(s);
+	y = malloc(n * sizeof *y);
+	assert_non_null(y);
+	for (size_t i = 0; i < n; i++) {
+		/* Box-Muller on a small LCG: reproducible noise */
+		double u1, u2;
+		seed = seed * 1664525u + 1013904223u;
+		u1 = ((double)(seed >> 8) + 1.0) / 16777217.0;
+		seed = seed * 1664525u + 1013904223u;
+		u2 = (double)(seed >> 8) / 16777216.0;
+		y[i] = irr_spectrum_y(s)[i] + 0.03 * sqrt(-2.0 * log(u1)) * cos(6.283185307179586 * u2);
+	}
+	assert_int_equal(irr_spectrum_from_xy(&noisy, irr_spectrum_x(s), y, n, IRR_Y_ABSORBANCE,
+	                                      "noisy", &err), IRR_OK);
+	free(y);
+	irr_spectrum_free(s);
+	c = run_check("*CC(*)c1ccccc1", noisy, NULL, IRR_SAMPLING_ATR, NULL, NULL);
+	assert_int_equal(irr_check_verdict(c), IRR_VERDICT_INCONCLUSIVE);
+	assert_true(irr_check_score(c) <= 0.5);
+	irr_check_free(c);
+}
+
 /* ---- Plumbing ---- */
 
 static void json_is_deterministic_and_complete(void **state)
@@ -813,6 +852,7 @@ int main(void)
 		cmocka_unit_test(mid_triple_bond_band_prefers_nitrile),
 		cmocka_unit_test(phase_moves_the_oh_window),
 		cmocka_unit_test(key_windows_out_of_range_is_inconclusive),
+		cmocka_unit_test(too_noisy_is_inconclusive),
 		cmocka_unit_test(json_is_deterministic_and_complete),
 		cmocka_unit_test(safety_cautions_reach_the_result),
 		cmocka_unit_test(solvent_library),
