@@ -277,7 +277,10 @@ static int looks_like_utf16(const unsigned char *p, size_t len)
 			else
 				zeros_even++;
 		}
-	return n >= 8 && (zeros_odd >= n / 2 - 1 || zeros_even >= n / 2 - 1);
+	/* Text in UTF-16 has its NULs in one byte position only; NULs
+	 * everywhere (/dev/zero, a sparse file) are binary data. */
+	return n >= 8 && ((zeros_odd >= n / 2 - 1 && zeros_even <= n / 8) ||
+	                  (zeros_even >= n / 2 - 1 && zeros_odd <= n / 8));
 }
 
 static int binary_error(const char *data, size_t len, size_t nul_at, const char *name,

@@ -264,6 +264,15 @@ static void bad_csv(void **state)
 		                 IRR_EINPUT);
 		assert_non_null(strstr(err.message, "UTF-16"));
 	}
+	/* NULs everywhere are binary data, not UTF-16. */
+	{
+		static const char zeros[64];
+		irr_spectrum *s = NULL;
+		irr_error err;
+		assert_int_equal(irr_spectrum_read_memory(&s, zeros, sizeof zeros, "z.csv", NULL, &err),
+		                 IRR_EINPUT);
+		assert_non_null(strstr(err.message, "NUL"));
+	}
 	/* Limits. */
 	irr_read_options_init(&o);
 	o.max_points = 3;
