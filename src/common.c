@@ -9,6 +9,16 @@
 #include <stdlib.h>
 #include <string.h>
 
+/* One "C" locale object for the process; newlocale is thread-safe and the
+ * object is never freed (it lives as long as the library). */
+static locale_t c_locale(void)
+{
+	static locale_t loc;
+	if (!loc)
+		loc = newlocale(LC_ALL_MASK, "C", (locale_t)0);
+	return loc;
+}
+
 int irr_error_set(irr_error *err, int code, const char *file, long line,
                   const char *fmt, ...)
 {
@@ -18,9 +28,15 @@ int irr_error_set(irr_error *err, int code, const char *file, long line,
 	err->code = code;
 	err->line = line;
 	snprintf(err->file, sizeof err->file, "%s", file ? file : "");
-	va_start(ap, fmt);
-	vsnprintf(err->message, sizeof err->message, fmt, ap);
-	va_end(ap);
+	{
+		/* Messages quote numbers ("%g"): print them with '.', whatever
+		 * locale the embedding program (or Open Babel) has set. */
+		locale_t old = uselocale(c_locale());
+		va_start(ap, fmt);
+		vsnprintf(err->message, sizeof err->message, fmt, ap);
+		va_end(ap);
+		uselocale(old);
+	}
 	/* One-line errors: a stray newline from a quoted input would split it. */
 	for (char *p = err->message; *p; p++)
 		if (*p == '\n' || *p == '\r')
@@ -98,16 +114,6 @@ NAME_FN(irr_intensity, intensity, intensity_names)
 NAME_FN(irr_shape, shape, shape_names)
 NAME_FN(irr_phase, phase, phase_names)
 NAME_FN(irr_sampling, sampling, sampling_names)
-
-/* One "C" locale object for the process; newlocale is thread-safe and the
- * object is never freed (it lives as long as the library). */
-static locale_t c_locale(void)
-{
-	static locale_t loc;
-	if (!loc)
-		loc = newlocale(LC_ALL_MASK, "C", (locale_t)0);
-	return loc;
-}
 
 int irr_parse_double(const char *s, char **end, double *out)
 {
