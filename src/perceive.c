@@ -275,6 +275,22 @@ static int vinyl_carbon(const ctx *c, int j)
 
 /* ---------------------------------------------------------------- carbonyls */
 
+/* The O that links carbonyl carbon i to another carbonyl carbon, or -1. */
+static int bridge_o(const ctx *c, int i)
+{
+	FOR_NB(c, i, e) {
+		int x = c->na[e];
+		if (EL(c, x) != 8 || x == c->carbonyl_o[i] || DEG(c, x) != 2)
+			continue;
+		FOR_NB(c, x, f) {
+			int y = c->na[f];
+			if (y != i && EL(c, y) == 6 && c->carbonyl_o[y] >= 0)
+				return x;
+		}
+	}
+	return -1;
+}
+
 static void find_carbonyls(ctx *c)
 {
 	for (size_t i = 0; i < c->n; i++) {
@@ -335,6 +351,14 @@ static void find_carbonyls(ctx *c)
 		else if (nC + hC == 2)
 			cl = hC ? CL_ALDEHYDE : CL_KETONE;
 		c->cls[i] = cl;
+	}
+	/* Dicarbonates (Boc2O) and carbonic-carboxylic anhydrides: an O that
+	 * bridges two carbonyl carbons makes an anhydride (two coupled C=O). */
+	for (size_t i = 0; i < c->n; i++) {
+		if (c->cls[i] != CL_CARBONATE)
+			continue;
+		if (bridge_o(c, (int)i) >= 0)
+			c->cls[i] = CL_ANHYDRIDE;
 	}
 	/* Refine the C(=O)O family by what the single-bonded O carries. */
 	for (size_t i = 0; i < c->n; i++) {
@@ -526,7 +550,9 @@ static void perceive_carbonyls(ctx *c)
 			break;
 		}
 		case CL_ANHYDRIDE: {
-			int bridge = hetero_of(c, i, 8), other = -1;
+			int bridge = bridge_o(c, i), other = -1;
+			if (bridge < 0)
+				break;
 			FOR_NB(c, bridge, e)
 				if (c->na[e] != i)
 					other = c->na[e];

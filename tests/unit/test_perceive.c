@@ -157,6 +157,9 @@ static void carbonyl_families(void **state)
 	       W("ester", ANY, ANY, ANY, ANY, ANY, NULL, 0));
 	EXPECT("acetic anhydride", "CC(=O)OC(C)=O", NULL,
 	       W("anhydride", 0, 0, ANY, ANY, ANY, NULL, 1), W("ester", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("di-tert-butyl dicarbonate (an anhydride of two carbonic half-esters)",
+	       "CC(C)(C)OC(=O)OC(=O)OC(C)(C)C", NULL, W("anhydride", 0, 0, ANY, ANY, ANY, NULL, 1),
+	       W("carbonate", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("ether", ANY, ANY, ANY, ANY, ANY, NULL, 0));
 	EXPECT("succinic anhydride", "O=C1CCC(=O)O1", NULL,
 	       W("anhydride", 0, 5, ANY, ANY, ANY, NULL, 1));
 	EXPECT("phthalic anhydride", "O=C1OC(=O)c2ccccc21", NULL,
