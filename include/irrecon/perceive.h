@@ -96,7 +96,10 @@ typedef struct irr_inventory irr_inventory;
 struct irr_tables; /* from tables.h; SMARTS groups of user tables */
 
 /* Perceives the groups of m. When `tables` is not NULL, groups defined there
- * by SMARTS (not by a perception key) are matched too. Caller owns *out. */
+ * by SMARTS (not by a perception key) are matched too; their compiled
+ * patterns are kept for the next call with the same tables (not
+ * thread-safe, like the structure stage). A SMARTS that does not compile is
+ * IRR_EINPUT naming the table file and group. Caller owns *out. */
 int irr_perceive(irr_inventory **out, const irr_molecule *m,
                  const struct irr_tables *tables, irr_error *err);
 void irr_inventory_free(irr_inventory *inv);
