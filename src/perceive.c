@@ -94,7 +94,6 @@ typedef struct ctx {
 	int *carbonyl_o;       /* for each carbon: its carbonyl O, or -1 */
 	int *cls;              /* carbonyl class of each carbon */
 	unsigned char *flags;
-	unsigned char *bflags; /* per bond: C=C already reported */
 	/* instances */
 	instance *inst;
 	size_t ninst, cap_inst;
@@ -827,8 +826,7 @@ static void perceive_nitrogen(ctx *c)
 					other = c->na[e];
 			if (term >= 0 && other >= 0) {
 				if (EL(c, other) == 7) {
-					instance *x = emit(c, "azide", other, i, term);
-					(void)x;
+					emit(c, "azide", other, i, term);
 					c->caution[CAU_AZIDE] = 1;
 					FOR_NB(c, other, e) {
 						int k = c->na[e];
@@ -1344,7 +1342,7 @@ static void perceive_heteroatoms(ctx *c)
 		const irr_atom *a = &c->at[i];
 		if (z == 16 && !a->aromatic) {
 			int oxo = oxo_count(c, i), nC = 0, nN = -1, nOH = -1, nOR = -1, nOm = -1,
-			    nCl = -1, cnt_other = 0;
+			    nCl = -1;
 			FOR_NB(c, i, e) {
 				int j = c->na[e], zj = EL(c, j);
 				if (is_oxo(c, i, j, c->no[e], 8))
@@ -1361,8 +1359,6 @@ static void perceive_heteroatoms(ctx *c)
 					nOR = j;
 				else if (zj == 17)
 					nCl = j;
-				else
-					cnt_other++;
 			}
 			if (oxo == 0 && a->charge == 0) {
 				if (a->h_count > 0 && a->degree == 1 && nC == 1)
@@ -1395,7 +1391,6 @@ static void perceive_heteroatoms(ctx *c)
 				}
 				(void)x;
 			}
-			(void)cnt_other;
 		} else if (z == 15) {
 			int oxo = oxo_count(c, i), nO = 0, nC = 0;
 			FOR_NB(c, i, e) {
@@ -1756,9 +1751,8 @@ static int build_context(ctx *c, const irr_molecule *m)
 	c->carbonyl_o = malloc(n1 * sizeof *c->carbonyl_o);
 	c->cls = malloc(n1 * sizeof *c->cls);
 	c->flags = calloc(n1, 1);
-	c->bflags = calloc(c->nb ? c->nb : 1, 1);
 	if (!c->ns || !c->na || !c->no || !c->nbid || !c->rs || !c->carbonyl_o || !c->cls ||
-	    !c->flags || !c->bflags)
+	    !c->flags)
 		return IRR_ENOMEM;
 	size_t pos = 0;
 	for (size_t i = 0; i < c->n; i++) {
@@ -1812,7 +1806,6 @@ static void free_context(ctx *c)
 	free(c->carbonyl_o);
 	free(c->cls);
 	free(c->flags);
-	free(c->bflags);
 	free(c->inst);
 	free(c->iatoms);
 }
