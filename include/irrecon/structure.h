@@ -32,7 +32,7 @@ typedef struct irr_atom {
 	int isotope;
 	int aromatic;
 	int hybridization;  /* 1 = sp, 2 = sp2, 3 = sp3, 0 = other/unknown */
-	int h_count;        /* total (implicit + explicit) hydrogens */
+	int h_count;        /* total (implicit + explicit) hydrogens, [2H]/[3H] excepted */
 	int in_ring;
 	int ring_size;      /* smallest SSSR ring containing the atom, 0 if none */
 	int degree;         /* heavy-atom neighbours */
