@@ -4,7 +4,10 @@
 # (Debian python3-rdkit, run with /usr/bin/python3) on the molecules of
 # tests/data/molecules/coverage.smi. Every difference must be listed, with
 # its explanation, in tests/data/molecules/rdkit_expected_diff.tsv; a listed
-# difference that no longer occurs fails too (stale entry).
+# difference that no longer occurs fails too (stale entry). Then the same
+# for the groups that have a plain textbook definition, counted by RDKit
+# SMARTS (tests/tools/rdkit_groups.py; expected differences in
+# tests/data/molecules/rdkit_group_expected_diff.tsv).
 set -u
 cd "$(dirname "$0")/../.."
 BUILD=${BUILD:-build}
@@ -63,3 +66,35 @@ for key in expected:
 print(f"{len(ours)} molecules, {len(seen)} expected differences, {bad} failures")
 sys.exit(1 if bad else 0)
 PY
+counts_rc=$?
+
+"$tmp/countdump" -g < "$data/coverage.smi" > "$tmp/groups.tsv" || exit 1
+/usr/bin/python3 tests/tools/rdkit_groups.py < "$tmp/groups.tsv" > "$tmp/group-diff.tsv" || exit 1
+/usr/bin/python3 - "$tmp/group-diff.tsv" "$data/rdkit_group_expected_diff.tsv" <<'PY'
+import sys
+found = {}
+for line in open(sys.argv[1]):
+    smi, key, a, b = line.rstrip("\n").split("\t")
+    found[(smi, key)] = (a, b)
+expected = {}
+for line in open(sys.argv[2]):
+    if not line.strip() or line.startswith("#"):
+        continue
+    smi, key, a, b, why = line.rstrip("\n").split("\t")
+    if not why.strip():
+        sys.exit(f"expected group difference without explanation: {smi} {key}")
+    expected[(smi, key)] = (a, b)
+bad = 0
+for k, v in found.items():
+    if expected.get(k) != v:
+        print(f"FAIL {k[0]} {k[1]}: irrecon {v[0]}, RDKit SMARTS {v[1]} (not an expected difference)")
+        bad += 1
+for k in expected:
+    if k not in found:
+        print(f"FAIL stale expected group difference: {k[0]} {k[1]}")
+        bad += 1
+print(f"groups: {len(found)} differences, all expected" if not bad else f"groups: {bad} failures")
+sys.exit(1 if bad else 0)
+PY
+groups_rc=$?
+[ $counts_rc -eq 0 ] && [ $groups_rc -eq 0 ]

@@ -1,0 +1,81 @@
+#!/usr/bin/python3
+# rdkit_groups.py: a second, independent opinion on the groups irrecon
+# perceives: for keys with a plain textbook definition (functional-group
+# classes as in Silverstein, Webster & Kiemle, 7th ed., ch. 2; from memory),
+# the number of unique matches of a SMARTS written from that definition
+# (Daylight SMARTS syntax), matched by RDKit (Debian python3-rdkit), and for
+# benzene_ring the all-carbon aromatic six-rings of RDKit's SSSR. Reads
+# `countdump -g` output on stdin; prints "smiles<TAB>key<TAB>irrecon<TAB>rdkit"
+# for every disagreement (tests/scripts/rdkit_counts.sh checks them).
+import sys
+
+from rdkit import Chem, RDLogger
+
+RDLogger.DisableLog("rdApp.*")
+
+# key -> SMARTS; each match is one instance of the group.
+DEFS = {
+    "nitrile": "[C]#[N;X1;+0]",
+    "aldehyde": "[CX3;H1,H2;!$(C[O,N,S,F,Cl,Br,I])]=[OX1]",
+    "phenol": "[OX2H1]-c",
+    "carboxylic_acid": "[CX3](=[OX1])[OX2H1]",
+    "nitro": "[#6]-[N+](=O)[O-]",
+    "thiol": "[#6]-[SX2H1]",
+    "epoxide": "[OX2]1[#6][#6]1",
+    "azide": "[N;X1,X2]=[N+]=[N-]",
+    "isocyanate": "[NX2]=C=O",
+    "isothiocyanate": "[NX2]=C=S",
+    "sulfone": "[#6][SX4](=[OX1])(=[OX1])[#6]",
+    "sulfonamide": "[#6,#7][SX4](=[OX1])(=[OX1])[NX3]",
+    "disulfide": "[#6][SX2][SX2][#6]",
+    "alkyne_terminal": "[CX2H1]#[CX2]",
+    "alkyne_internal": "[CX2H0;!$(C[#7,#8])]#[CX2H0;!$(C[#7,#8])]",
+    "methyl": "[CX4H3]",
+    "c_f": "[#6;!$(C=O)]-F",
+    "c_cl": "[#6;!$(C=O)]-Cl",
+    "c_br": "[#6;!$(C=O)]-Br",
+    "c_i": "[#6;!$(C=O)]-I",
+    "water": "[OH2;D0]",
+    "acid_halide": "[CX3;$(C[F,Cl,Br,I])]=[OX1]",
+    "isonitrile": "[C-]#[N+]",
+    "si_h": "[Si;!H0]",
+    "boronic_acid": "[BX3]([OH1])[OH1]",
+    "ether": "[OX2;!a;!r3]([#6;!$([#6]=[!#6])])[#6;!$([#6]=[!#6])]",
+    "ester": "[#6][#6X3](=[OX1])!@[OX2][#6;!$([#6]=[O,S])]",
+    "lactone": "[#6][#6X3](=[OX1])@[#8X2]@[#6;!$([#6]=[O,S])]",
+    "alkene": "[CX3;!a]=[CX3;!a]",
+}
+
+
+
+def main():
+    pats = {k: Chem.MolFromSmarts(v) for k, v in DEFS.items()}
+    pats["benzene_ring"] = None
+    for line in sys.stdin:
+        parts = line.rstrip("\n").split("\t")
+        smi = parts[0]
+        if len(parts) > 1 and parts[1] == "ERROR":
+            continue
+        ours = {}
+        for g in parts[1:]:
+            if g.startswith("CAUTION"):
+                continue
+            toks = g.split()
+            ours[toks[0]] = ours.get(toks[0], 0) + int(toks[-1][1:])
+        mol = Chem.MolFromSmiles(smi)
+        if mol is None:
+            print(f"{smi}\tRDKIT_REJECTS\t-\t-")
+            continue
+        for key, pat in pats.items():
+            if key == "benzene_ring":
+                n = sum(1 for r in Chem.GetSSSR(mol) if len(r) == 6 and all(
+                    mol.GetAtomWithIdx(i).GetIsAromatic() and
+                    mol.GetAtomWithIdx(i).GetAtomicNum() == 6 for i in r))
+            else:
+                n = len(mol.GetSubstructMatches(pat))
+            if n != ours.get(key, 0):
+                print(f"{smi}\t{key}\t{ours.get(key, 0)}\t{n}")
+
+
+if __name__ == "__main__":
+    main()
