@@ -25,6 +25,10 @@
 
 #define MAX_LIST_BYTES ((size_t)64 * 1024 * 1024)
 #define MAX_DEPTH 32
+/* A measured spectrum shows tens of bands, rarely more than a few hundred;
+ * the matching downstream grows faster than linearly with the count, so a
+ * longer list is refused rather than run for minutes. */
+#define MAX_LIST_PEAKS 10000
 /* The most plausible band positions; beyond them a number is a typo or a
  * wavelength. */
 #define POS_MIN 10.0
@@ -107,6 +111,9 @@ static int add_peak(irr_peaklist *pl, long **lines, size_t *lcap, long line,
 		p.intensity = icls;
 		p.rel_height = class_rel_height(icls);
 	}
+	if (pl->count >= MAX_LIST_PEAKS)
+		return irr_error_set(err, IRR_ELIMIT, name, line,
+		                     "more than %d peaks: over the limit for a peak list", MAX_LIST_PEAKS);
 	if (pl->count == *lcap) {
 		size_t nc = *lcap ? 2 * *lcap : 64;
 		long *nl = realloc(*lines, nc * sizeof *nl);

@@ -116,7 +116,8 @@ int irr_peaks_pick(irr_peaklist **out, const irr_spectrum *s,
  * (s, m, w, vs, vw, strong, medium, weak, variable) sets the class, with
  * height 0 and rel_height 1.0 / 0.2 / 0.05 (strong / medium / weak); no
  * intensity at all leaves IRR_INT_NONE (unknown). Width is the FWHM in
- * cm-1 (0 = unknown). Errors name the file and line. Caller owns *out. */
+ * cm-1 (0 = unknown). At most 10,000 peaks (IRR_ELIMIT beyond). Errors
+ * name the file and line. Caller owns *out. */
 int irr_peaklist_read_file(irr_peaklist **out, const char *path, irr_error *err);
 int irr_peaklist_read_memory(irr_peaklist **out, const char *data, size_t len,
                              const char *name, irr_error *err);

@@ -18,6 +18,7 @@
 
 #include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include "irrecon/peaks.h"
@@ -204,6 +205,22 @@ static void bad_memory_inputs(void **state)
 	                                          74, "deep", &err), IRR_EINPUT);
 	assert_int_equal(irr_peaklist_read_memory(&pl, "{\"range\":[4000],\"peaks\":[1601]}", 31, "r", &err),
 	                 IRR_EINPUT);
+	/* The documented limit (peaks.h): 10,000 peaks. */
+	{
+		size_t cap = 10001 * 8 + 1, len = 0;
+		char *big = malloc(cap);
+		assert_non_null(big);
+		for (int k = 0; k < 10001; k++)
+			len += (size_t)snprintf(big + len, cap - len, "%d.5\n", 1000 + k % 2000);
+		/* Without the last line ("1000.5\\n", 7 bytes): exactly the limit. */
+		assert_int_equal(irr_peaklist_read_memory(&pl, big, len - 7, "10000", &err), IRR_OK);
+		assert_int_equal(irr_peaklist_count(pl), 10000);
+		irr_peaklist_free(pl);
+		assert_int_equal(irr_peaklist_read_memory(&pl, big, len, "10001", &err), IRR_ELIMIT);
+		assert_int_equal(err.line, 10001);
+		assert_non_null(strstr(err.message, "limit"));
+		free(big);
+	}
 	assert_int_equal(irr_peaklist_read_file(&pl, DATA "does-not-exist.csv", &err), IRR_EIO);
 	assert_null(pl);
 	irr_peaklist_free(NULL);
