@@ -212,7 +212,7 @@ static void bad_memory_inputs(void **state)
 		assert_non_null(big);
 		for (int k = 0; k < 10001; k++)
 			len += (size_t)snprintf(big + len, cap - len, "%d.5\n", 1000 + k % 2000);
-		/* Without the last line ("1000.5\\n", 7 bytes): exactly the limit. */
+		/* Without the last line (7 bytes): exactly the limit. */
 		assert_int_equal(irr_peaklist_read_memory(&pl, big, len - 7, "10000", &err), IRR_OK);
 		assert_int_equal(irr_peaklist_count(pl), 10000);
 		irr_peaklist_free(pl);
