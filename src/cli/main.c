@@ -1,4 +1,5 @@
 /* main.c: entry point of the irrecon program; dispatches to subcommands. */
+#include <locale.h>
 #include <stdio.h>
 #include <string.h>
 
@@ -38,7 +39,10 @@ static void usage(FILE *f)
 
 int main(int argc, char **argv)
 {
-	/* No setlocale(): numbers are read and written with '.' always. */
+	/* Numbers are read and written with '.' always. The library takes care
+	 * of itself; the program pins its own locale too, in case something
+	 * loaded before main (a preload, a plugin) switched it. */
+	setlocale(LC_ALL, "C");
 	if (argc < 2) {
 		usage(stderr);
 		return CLI_ERROR;
