@@ -234,6 +234,23 @@ for exp in "$DIR"/*.expect; do
 		echo "FAIL $c: $WHY"
 	fi
 done
+# The runner itself must be able to fail: a program that does nothing and
+# exits 0, and one that prints a well-formed error without naming the file,
+# are both rejected on an ordinary case.
+if [ -z "${CASES:-}" ]; then
+	real=$IRRECON
+	printf '#!/bin/sh\nexit 0\n' >"$PROG_DIR/silent"
+	printf '#!/bin/sh\necho "irrecon: somewhere:1: no data points: the file is empty" >&2\nexit 2\n' >"$PROG_DIR/vague"
+	chmod +x "$PROG_DIR/silent" "$PROG_DIR/vague"
+	for fake in silent vague; do
+		IRRECON=$PROG_DIR/$fake
+		if check_case csv-empty; then
+			echo "FAIL runner self-check: a '$fake' program passed case csv-empty"
+			fail=$((fail + 1))
+		fi
+	done
+	IRRECON=$real
+fi
 if [ -z "${CASES:-}" ] && [ "$n" -lt $MIN_CASES ]; then
 	echo "bad_inputs: only $n cases in $DIR (at least $MIN_CASES wanted)"
 	fail=$((fail + 1))
