@@ -243,10 +243,10 @@ static void print_text(FILE *out, const irr_molecule *m, const char *title,
 		{
 			char win[72];
 			snprintf(win, sizeof win, "%s-%s", num(a, sizeof a, bd->low), num(b, sizeof b, bd->high));
-			fprintf(out, "  %-9s %5s %c %-7s %3.1f ", win, num(d, sizeof d, bd->typical),
+			fprintf(out, "  %-9s %5s %c %-7s %3s ", win, num(d, sizeof d, bd->typical),
 			        intensity_letter(bd->intensity),
 			        bd->shape == IRR_SHAPE_VERY_BROAD ? "v.broad" : irr_shape_name(bd->shape),
-			        bd->weight);
+			        (irr_format_double(b, sizeof b, bd->weight, 1), b));
 		}
 		fit(out, label, 47);
 		fprintf(out, "\n");
