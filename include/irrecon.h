@@ -29,6 +29,7 @@
 #include "irrecon/peaks.h"
 #include "irrecon/axischeck.h"
 #include "irrecon/structure.h"
+#include "irrecon/keys.h"
 #include "irrecon/perceive.h"
 #include "irrecon/tables.h"
 #include "irrecon/predict.h"

@@ -4,6 +4,7 @@
  * groups by perception key and by id so that prediction does no file I/O or
  * JSON work per molecule. */
 #include "irrecon/tables.h"
+#include "irrecon/keys.h"
 #include "irrecon/sha256.h"
 #include "irrecon/structure.h"
 
@@ -37,27 +38,6 @@
 
 /* Perception keys from perceive.h. A table keyed on anything else would
  * never match, so a misspelt key is an error rather than a silent no-op. */
-static const char *const known_keys[] = {
-	"alcohol_primary", "alcohol_secondary", "alcohol_tertiary", "phenol",
-	"carboxylic_acid", "carboxylate",
-	"ketone", "diketone_1_2", "diketone_1_3", "quinone", "aldehyde", "ester",
-	"lactone", "formate", "anhydride", "acid_halide", "amide", "lactam",
-	"imide", "urea", "carbamate", "carbonate",
-	"amine", "ammonium", "imine", "oxime", "hydrazone", "nitro", "nitroso",
-	"azide", "diazo", "isocyanate", "isothiocyanate", "carbodiimide",
-	"nitrile", "isonitrile",
-	"alkyne_terminal", "alkyne_internal", "alkene", "allene",
-	"benzene_ring", "pyridine_ring", "pyrrole_nh", "furan_ring", "thiophene_ring",
-	"methyl", "methylene", "methine", "gem_dimethyl", "tert_butyl",
-	"isopropyl", "long_chain",
-	"ether", "epoxide", "peroxide",
-	"thiol", "sulfide", "disulfide", "sulfoxide", "sulfone", "sulfonamide",
-	"sulfonate_ester", "sulfonic_acid", "sulfonate", "sulfonyl_chloride", "thiocarbonyl",
-	"phosphine", "phosphine_oxide", "phosphate", "phosphonate", "p_h",
-	"si_h", "si_methyl", "siloxane", "boronic_acid", "boronic_ester",
-	"c_f", "c_cl", "c_br", "c_i", "water", NULL
-};
-
 /* Attributes a context rule may test (perceive.h irr_group_attrs, the
  * measuring conditions, and the instance count). */
 static const char *const rule_attrs[] = {
@@ -617,7 +597,7 @@ static int parse_group(ctx *c, const cJSON *jg, irr_table_group *g)
 	if ((rc = get_string(c, jg, "group", "key", 0, &s)))
 		return rc;
 	if (s) {
-		if (!in_list(s, known_keys))
+		if (!irr_key_name(s))
 			return fail(c, "unknown perception key '%s' (see include/irrecon/perceive.h; "
 			               "use \"smarts\" for a group of your own)", s);
 		if (!(g->key = arena_strdup(c->t, s)))
@@ -642,7 +622,7 @@ static int parse_group(ctx *c, const cJSON *jg, irr_table_group *g)
 	if (!g->key == !g->smarts)
 		return fail(c, "give exactly one of 'key' (a perception key) and 'smarts'");
 	/* A SMARTS group is reported under its id, which must not read as a key. */
-	if (g->smarts && in_list(g->id, known_keys))
+	if (g->smarts && irr_key_name(g->id))
 		return fail(c, "a SMARTS group's id must not be a perception key; choose another id");
 	if ((rc = get_string(c, jg, "group", "source", 0, &gsource)))
 		return rc;

@@ -52,10 +52,6 @@ void irr_prediction_free(irr_prediction *p);
 size_t irr_prediction_count(const irr_prediction *p);
 const irr_band *irr_prediction_band(const irr_prediction *p, size_t i);
 
-/* Trade name of a perception key ("ketone" -> "ketone", "alcohol_primary"
- * -> "primary alcohol"), or NULL for an unknown key. Static string. */
-const char *irr_key_name(const char *key);
-
 /* The five spectral regions used to group bands in reports: 0 = above 3000,
  * 1 = 3000-2500, 2 = 2500-2000, 3 = 2000-1500, 4 = fingerprint (< 1500). */
 int irr_region_of(double wavenumber);

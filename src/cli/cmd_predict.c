@@ -10,6 +10,7 @@
 
 #include "cli/cli.h"
 #include "irrecon/common.h"
+#include "irrecon/keys.h"
 #include "irrecon/perceive.h"
 #include "irrecon/predict.h"
 #include "irrecon/structure.h"

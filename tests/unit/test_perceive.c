@@ -26,6 +26,7 @@
 #include <string.h>
 #include <cmocka.h>
 
+#include "irrecon/keys.h"
 #include "irrecon/perceive.h"
 #include "irrecon/structure.h"
 #include "irrecon/tables.h"
@@ -561,6 +562,45 @@ static void smarts_groups_from_a_user_table(void **state)
 	irr_molecule_free(m);
 }
 
+/* Perception and the tables share one key vocabulary (keys.h): every id
+ * perception gives for the coverage set (tests/data/molecules/coverage.smi,
+ * the RDKit cross-check molecules) must be a key, and every key must occur in
+ * that set, so a new key cannot slip past the tables' coverage test. */
+static void perceived_ids_are_the_key_vocabulary(void **state)
+{
+	FILE *f = fopen("tests/data/molecules/coverage.smi", "r");
+	char line[4096];
+	size_t nkeys = irr_key_count();
+	int *seen = calloc(nkeys, sizeof *seen);
+	(void)state;
+	assert_non_null(f);
+	assert_non_null(seen);
+	while (fgets(line, sizeof line, f)) {
+		irr_inventory *inv;
+		char *tab = strchr(line, '\t');
+		if (line[0] == '#' || line[0] == '\n')
+			continue;
+		if (tab)
+			*tab = '\0';
+		line[strcspn(line, "\r\n")] = '\0';
+		inv = perceive(line, NULL);
+		for (size_t i = 0; i < irr_inventory_group_count(inv); i++) {
+			const char *id = irr_inventory_group(inv, i)->id;
+			if (!irr_key_name(id))
+				fail_msg("%s: perceived id '%s' is not in keys.h", line, id);
+			for (size_t k = 0; k < nkeys; k++)
+				if (!strcmp(irr_key_at(k), id))
+					seen[k] = 1;
+		}
+		irr_inventory_free(inv);
+	}
+	fclose(f);
+	for (size_t k = 0; k < nkeys; k++)
+		if (!seen[k])
+			fail_msg("key '%s' occurs in no molecule of coverage.smi", irr_key_at(k));
+	free(seen);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -573,6 +613,7 @@ int main(void)
 		cmocka_unit_test(bond_counts),
 		cmocka_unit_test(merged_entries_carry_all_atoms),
 		cmocka_unit_test(smarts_groups_from_a_user_table),
+		cmocka_unit_test(perceived_ids_are_the_key_vocabulary),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

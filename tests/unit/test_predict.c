@@ -17,6 +17,7 @@
 #include <string.h>
 #include <cmocka.h>
 
+#include "irrecon/keys.h"
 #include "irrecon/perceive.h"
 #include "irrecon/predict.h"
 #include "irrecon/structure.h"
