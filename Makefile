@@ -110,10 +110,10 @@ $(BUILD)/irrecon.pc: irrecon.pc.in FORCE
 FORCE:
 
 # The man page, made from the program's own --help texts so that it cannot
-# drift from the options; doc/irrecon.1 is the committed copy for reading.
+# drift from the options; docs/irrecon.1 is the committed copy for reading.
 $(BUILD)/irrecon.1: $(BUILD)/irrecon tools/mkman
 	@if command -v python3 >/dev/null; then python3 tools/mkman $(BUILD)/irrecon > $@.tmp && mv $@.tmp $@; \
-	 else cp doc/irrecon.1 $@; fi
+	 else cp docs/irrecon.1 $@; fi
 
 # Program, libraries (shared with soname libirrecon.so.0, and static),
 # headers, group tables, man page and pkg-config file under $(DESTDIR)$(PREFIX).

@@ -4,7 +4,8 @@
  * bond counts and safety cautions.
  *
  * Perception keys (the `id` of a group; group tables refer to them with
- * "key"; the list with trade names is keys.h / src/keys.c). Attributes that apply are listed after each; all others are 0/"".
+ * "key"; the list with trade names is keys.h / src/keys.c). Attributes
+ * that apply are listed after each; all others are 0/"".
  *
  *   O-H:      alcohol_primary, alcohol_secondary, alcohol_tertiary  [hbond_intra]
  *             phenol [hbond_intra], carboxylic_acid [conjugated], carboxylate
