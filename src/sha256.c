@@ -1,8 +1,19 @@
 /* sha256.c: SHA-256 as specified in FIPS 180-4 (Secure Hash Standard,
- * NIST 2015), section 6.2; used for table digests and input hashes. */
+ * NIST 2015), section 6.2; used for table digests and input hashes. On x86
+ * processors with the SHA extensions (Intel SHA Extensions, 2013; the
+ * SHA256RNDS2/MSG1/MSG2 instructions) the compression runs on them, found
+ * at run time by CPUID; elsewhere the portable code below. */
 #include "irrecon/sha256.h"
+#include "sha256_impl.h"
 
 #include <string.h>
+
+#if defined(__x86_64__) || defined(__i386__)
+#include <cpuid.h>
+#include <immintrin.h>
+#include <stdatomic.h>
+#define IRR_SHA_X86 1
+#endif
 
 /* FIPS 180-4, 4.2.2: first 32 bits of the fractional parts of the cube
  * roots of the first 64 primes. */
@@ -19,7 +30,7 @@ static const uint32_t K[64] = {
 
 #define ROTR(x, n) (((x) >> (n)) | ((x) << (32 - (n))))
 
-static void compress(uint32_t h[8], const unsigned char p[64])
+static void compress_portable(uint32_t h[8], const unsigned char p[64])
 {
 	uint32_t w[64], a, b, c, d, e, f, g, hh;
 	for (int t = 0; t < 16; t++)
@@ -44,6 +55,105 @@ static void compress(uint32_t h[8], const unsigned char p[64])
 	h[4] += e, h[5] += f, h[6] += g, h[7] += hh;
 }
 
+static void blocks_portable(uint32_t h[8], const unsigned char *p, size_t nblocks)
+{
+	for (; nblocks; nblocks--, p += 64)
+		compress_portable(h, p);
+}
+
+#ifdef IRR_SHA_X86
+/* The same compression on the SHA extensions. The state is kept as the
+ * register pairs ABEF and CDGH that SHA256RNDS2 works on; each 128-bit
+ * message vector holds four schedule words W[4i..4i+3], and each
+ * SHA256RNDS2 does two rounds (FIPS 180-4, 6.2.2 steps 1-3). */
+__attribute__((target("sha,sse4.1")))
+static void blocks_shani(uint32_t h[8], const unsigned char *p, size_t nblocks)
+{
+	/* Big-endian words (FIPS 180-4, 3.1) from little-endian lanes. */
+	const __m128i bswap = _mm_set_epi64x(0x0c0d0e0f08090a0bULL, 0x0405060700010203ULL);
+	__m128i tmp = _mm_loadu_si128((const __m128i *)&h[0]);     /* DCBA */
+	__m128i st1 = _mm_loadu_si128((const __m128i *)&h[4]);     /* HGFE */
+	tmp = _mm_shuffle_epi32(tmp, 0xB1);                        /* CDAB */
+	st1 = _mm_shuffle_epi32(st1, 0x1B);                        /* EFGH */
+	__m128i st0 = _mm_alignr_epi8(tmp, st1, 8);                /* ABEF */
+	st1 = _mm_blend_epi16(st1, tmp, 0xF0);                     /* CDGH */
+	for (; nblocks; nblocks--, p += 64) {
+		__m128i save0 = st0, save1 = st1, w[4], m;
+		for (int i = 0; i < 16; i++) {
+			if (i < 4) {
+				w[i] = _mm_shuffle_epi8(_mm_loadu_si128((const __m128i *)(p + 16 * i)),
+				                        bswap);
+			} else {
+				/* W[t] = s1(W[t-2]) + W[t-7] + s0(W[t-15]) + W[t-16]. */
+				__m128i v = _mm_sha256msg1_epu32(w[i & 3], w[(i + 1) & 3]);
+				v = _mm_add_epi32(v, _mm_alignr_epi8(w[(i + 3) & 3], w[(i + 2) & 3], 4));
+				w[i & 3] = _mm_sha256msg2_epu32(v, w[(i + 3) & 3]);
+			}
+			m = _mm_add_epi32(w[i & 3], _mm_loadu_si128((const __m128i *)&K[4 * i]));
+			st1 = _mm_sha256rnds2_epu32(st1, st0, m);
+			m = _mm_shuffle_epi32(m, 0x0E);
+			st0 = _mm_sha256rnds2_epu32(st0, st1, m);
+		}
+		st0 = _mm_add_epi32(st0, save0);
+		st1 = _mm_add_epi32(st1, save1);
+	}
+	tmp = _mm_shuffle_epi32(st0, 0x1B);                        /* FEBA */
+	st1 = _mm_shuffle_epi32(st1, 0xB1);                        /* DCHG */
+	st0 = _mm_blend_epi16(tmp, st1, 0xF0);                     /* DCBA */
+	st1 = _mm_alignr_epi8(st1, tmp, 8);                        /* HGFE */
+	_mm_storeu_si128((__m128i *)&h[0], st0);
+	_mm_storeu_si128((__m128i *)&h[4], st1);
+}
+
+/* CPUID leaf 7 EBX bit 29 (SHA), leaf 1 ECX bits 9 (SSSE3) and 19 (SSE4.1).
+ * 0 = not asked yet, 1 = portable, 2 = SHA extensions. */
+static atomic_int sha_impl;
+
+static int have_shani(void)
+{
+	unsigned a, b, c, d;
+	if (!__get_cpuid(1, &a, &b, &c, &d) || !(c & (1u << 9)) || !(c & (1u << 19)))
+		return 0;
+	if (!__get_cpuid_count(7, 0, &a, &b, &c, &d))
+		return 0;
+	return (b >> 29) & 1;
+}
+#endif
+
+int irr_sha256__fast_available(void)
+{
+#ifdef IRR_SHA_X86
+	return have_shani();
+#else
+	return 0;
+#endif
+}
+
+void irr_sha256__force_portable(int portable)
+{
+#ifdef IRR_SHA_X86
+	atomic_store_explicit(&sha_impl, portable ? 1 : 0, memory_order_relaxed);
+#else
+	(void)portable;
+#endif
+}
+
+static void compress_blocks(uint32_t h[8], const unsigned char *p, size_t nblocks)
+{
+#ifdef IRR_SHA_X86
+	int impl = atomic_load_explicit(&sha_impl, memory_order_relaxed);
+	if (impl == 0) {
+		impl = have_shani() ? 2 : 1;
+		atomic_store_explicit(&sha_impl, impl, memory_order_relaxed);
+	}
+	if (impl == 2) {
+		blocks_shani(h, p, nblocks);
+		return;
+	}
+#endif
+	blocks_portable(h, p, nblocks);
+}
+
 void irr_sha256_init(irr_sha256 *s)
 {
 	/* FIPS 180-4, 5.3.3: initial hash value. */
@@ -64,11 +174,14 @@ void irr_sha256_update(irr_sha256 *s, const void *data, size_t len)
 		s->nbuf += take, p += take, len -= take;
 		if (s->nbuf < 64)
 			return;
-		compress(s->h, s->buf);
+		compress_blocks(s->h, s->buf, 1);
 		s->nbuf = 0;
 	}
-	for (; len >= 64; p += 64, len -= 64)
-		compress(s->h, p);
+	if (len >= 64) {
+		compress_blocks(s->h, p, len / 64);
+		p += len / 64 * 64;
+		len %= 64;
+	}
 	memcpy(s->buf, p, len);
 	s->nbuf = len;
 }
@@ -80,13 +193,13 @@ void irr_sha256_final(irr_sha256 *s, unsigned char digest[32])
 	s->buf[s->nbuf++] = 0x80;
 	if (s->nbuf > 56) {
 		memset(s->buf + s->nbuf, 0, 64 - s->nbuf);
-		compress(s->h, s->buf);
+		compress_blocks(s->h, s->buf, 1);
 		s->nbuf = 0;
 	}
 	memset(s->buf + s->nbuf, 0, 56 - s->nbuf);
 	for (int i = 0; i < 8; i++)
 		s->buf[56 + i] = (unsigned char)(bits >> (56 - 8 * i));
-	compress(s->h, s->buf);
+	compress_blocks(s->h, s->buf, 1);
 	for (int i = 0; i < 8; i++) {
 		digest[4 * i] = (unsigned char)(s->h[i] >> 24);
 		digest[4 * i + 1] = (unsigned char)(s->h[i] >> 16);
