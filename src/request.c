@@ -122,6 +122,7 @@ int irr_request_clone(irr_request **out, const irr_request *r, irr_error *err)
 	c->read = r->read;
 	c->peak = r->peak;
 	c->units = r->units;
+	c->solvents_lib = r->solvents_lib;
 	if (set_str(&c->sample, r->sample) || set_str(&c->structure, r->structure) ||
 	    set_str(&c->spectrum_file, r->spectrum_file) ||
 	    set_str(&c->peaks_file, r->peaks_file) || set_str(&c->base_dir, r->base_dir) ||
@@ -228,6 +229,12 @@ int irr_request_set_phase(irr_request *r, irr_phase p)
 	if (p < IRR_PHASE_CONDENSED || p > IRR_PHASE_GAS)
 		return IRR_EINPUT;
 	r->phase = p;
+	return IRR_OK;
+}
+
+int irr_request_use_solvents(irr_request *r, const irr_solvent_library *lib)
+{
+	r->solvents_lib = lib;
 	return IRR_OK;
 }
 
@@ -924,6 +931,8 @@ int irr_request__run_timed(irr_check **out, const irr_request *r,
 	if ((rc = irr_check_create(&c, t, err)) != IRR_OK)
 		goto done;
 	irr_check_set_options(c, &o);
+	if (r->solvents_lib && (rc = irr_check_use_solvents(c, r->solvents_lib, err)) != IRR_OK)
+		goto done;
 	if ((rc = irr_check_set_structure_named(c, r->structure, name, err)) != IRR_OK ||
 	    (rc = other_list(c, IRR_OTHER_STARTING_MATERIAL, &r->starting_materials, err)) != IRR_OK ||
 	    (rc = other_list(c, IRR_OTHER_REAGENT, &r->reagents, err)) != IRR_OK ||

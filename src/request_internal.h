@@ -32,6 +32,7 @@ struct irr_request {
 	irr_peak_options peak;
 	char *tables_dir;
 	irr_strlist extra_tables;
+	const irr_solvent_library *solvents_lib; /* borrowed; NULL: each run loads it */
 };
 
 /* Appends the ';'-separated, trimmed, non-empty items of s. */

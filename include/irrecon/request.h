@@ -60,6 +60,10 @@ int irr_request_add_reagent(irr_request *r, const char *smiles);
 int irr_request_add_solvent(irr_request *r, const char *name_or_smiles);
 int irr_request_set_phase(irr_request *r, irr_phase phase);
 int irr_request_set_sampling(irr_request *r, irr_sampling sampling);
+/* Runs share this already loaded solvent library (borrowed: keep it alive
+ * while the request and its clones run) instead of loading it each time;
+ * a batch loads it once for all samples. NULL goes back to loading. */
+int irr_request_use_solvents(irr_request *r, const irr_solvent_library *lib);
 /* The folder relative paths resolve against (NULL: current directory). */
 int irr_request_set_base_dir(irr_request *r, const char *dir);
 

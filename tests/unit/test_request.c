@@ -264,8 +264,24 @@ static void request_runs_like_the_api(void **state)
 	j1 = json_of(c1);
 	j2 = json_of(c2);
 	assert_string_equal(j1, j2);
-	free(j1);
 	free(j2);
+
+	/* A shared, already loaded solvent library (as batch uses) changes
+	 * nothing in the result. */
+	{
+		irr_solvent_library *lib = NULL;
+		irr_check *c3 = NULL;
+		assert_int_equal(irr_solvents_load(&lib, NULL, &err), IRR_OK);
+		irr_request_use_solvents(r, lib);
+		assert_int_equal(irr_request_run(&c3, r, t, &err), IRR_OK);
+		j2 = json_of(c3);
+		assert_string_equal(j1, j2);
+		free(j2);
+		irr_check_free(c3);
+		irr_request_use_solvents(r, NULL);
+		irr_solvents_free(lib);
+	}
+	free(j1);
 	irr_check_free(c1);
 	irr_check_free(c2);
 	irr_request_free(r);
