@@ -1149,6 +1149,11 @@ int irr_check_run(irr_check *c, irr_error *err)
 			int ok;
 			if (e->status == IRR_BAND_UNOBSERVABLE && e->note && e->note[0] == 'o')
 				continue;
+			/* A band the spectrum lacks explains nothing: a sharp C-H
+			 * peak inside the window of a missing acid O-H envelope is
+			 * not evidence of the acid. */
+			if (e->status == IRR_BAND_MISSING)
+				continue;
 			if (!peak_in(p, b->low, b->high, 0.5 * margin_of(b->low, b->high)))
 				continue;
 			if (b->overtone && peak_class(p) > 1)
