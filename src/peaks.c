@@ -191,12 +191,20 @@ void irr_peaklist_saturated_range(const irr_peaklist *pl, size_t i,
 
 /* ---- numerical helpers --------------------------------------------------- */
 
-/* k-th smallest of a[0..n-1] (reorders a): Hoare's selection, expected O(n). */
-static double select_kth(double *a, size_t n, size_t k)
+/* k-th smallest of a[0..n-1] (reorders a): Hoare's FIND (C. A. R. Hoare,
+ * Commun. ACM 4 (1961) 321), expected O(n), the pivot the median of the
+ * first, middle and last values (fewer passes on sorted stretches). */
+static double select_small(double *a, size_t n, size_t k)
 {
 	size_t lo = 0, hi = n - 1;
 	while (lo < hi) {
-		double pivot = a[lo + (hi - lo) / 2];
+		double p0 = a[lo], p1 = a[lo + (hi - lo) / 2], p2 = a[hi], pivot;
+		if (p0 > p1) {
+			double t = p0;
+			p0 = p1;
+			p1 = t;
+		}
+		pivot = p2 < p0 ? p0 : p2 > p1 ? p1 : p2;
 		size_t i = lo, j = hi;
 		while (i <= j) {
 			while (a[i] < pivot)
@@ -223,6 +231,45 @@ static double select_kth(double *a, size_t n, size_t k)
 	return a[k];
 }
 
+/* k-th smallest, exactly, in about one pass for long arrays: the idea of
+ * Floyd & Rivest's SELECT (R. W. Floyd, R. L. Rivest, Commun. ACM 18 (1975)
+ * 165): two order statistics of an evenly spaced sample bracket the k-th
+ * value with high probability; one pass counts what lies below the
+ * bracket and gathers what lies inside it, and only those few are
+ * searched. When the bracket misses (rare), a is still a permutation of
+ * the input and the plain search runs on all of it. */
+#define SELECT_SAMPLE 511
+#define SELECT_GAP 36 /* about 3 sd of the sample rank of the k-th value */
+static double select_kth(double *a, size_t n, size_t k)
+{
+	if (n >= 2 * SELECT_SAMPLE) {
+		double smp[SELECT_SAMPLE], lo = -HUGE_VAL, hi = HUGE_VAL;
+		size_t step = n / SELECT_SAMPLE, r = (size_t)((double)k * SELECT_SAMPLE / (double)n);
+		size_t rlo = r > SELECT_GAP ? r - SELECT_GAP : 0;
+		size_t rhi = r + SELECT_GAP < SELECT_SAMPLE - 1 ? r + SELECT_GAP : SELECT_SAMPLE - 1;
+		size_t below = 0, m = 0;
+		for (size_t j = 0; j < SELECT_SAMPLE; j++)
+			smp[j] = a[j * step];
+		if (rlo > 0)
+			lo = select_small(smp, SELECT_SAMPLE, rlo);
+		if (rhi < SELECT_SAMPLE - 1)
+			hi = rlo > 0 ? select_small(smp + rlo, SELECT_SAMPLE - rlo, rhi - rlo)
+			             : select_small(smp, SELECT_SAMPLE, rhi);
+		for (size_t i = 0; i < n; i++) {
+			double v = a[i];
+			if (v < lo) {
+				below++;
+			} else if (v <= hi) {
+				a[i] = a[m];
+				a[m++] = v;
+			}
+		}
+		if (below <= k && k < below + m)
+			return select_small(a, m, k - below);
+	}
+	return select_small(a, n, k);
+}
+
 static double median_inplace(double *a, size_t n)
 {
 	if (n == 0)
@@ -231,15 +278,15 @@ static double median_inplace(double *a, size_t n)
 }
 
 /* Robust sd of white noise from second differences: d = y[i-1]-2y[i]+y[i+1]
- * has sd sigma*sqrt(6); MAD*1.4826 estimates the sd of a normal sample. */
-static double noise_of(const double *y, size_t n, double *scratch)
+ * has sd sigma*sqrt(6); MAD*1.4826 estimates the sd of a normal sample.
+ * dd[i] holds |d| centred on i (computed once for the global level and all
+ * blocks); the median of dd[a..e-1] is taken on a copy in scratch. */
+static double noise_of(const double *dd, size_t a, size_t e, double *scratch)
 {
-	size_t m = 0;
-	for (size_t i = 1; i + 1 < n; i++)
-		scratch[m++] = fabs(y[i - 1] - 2.0 * y[i] + y[i + 1]);
-	if (m == 0)
+	if (e <= a)
 		return 0.0;
-	return 1.4826 * median_inplace(scratch, m) / sqrt(6.0);
+	memcpy(scratch, dd + a, (e - a) * sizeof *scratch);
+	return 1.4826 * median_inplace(scratch, e - a) / sqrt(6.0);
 }
 
 /* Lower convex hull of (x, y) by Andrew's monotone chain (x ascending),
@@ -688,15 +735,18 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 				hi = w.y[i];
 		}
 		range = hi - lo;
-		/* Block raw levels, then the global level. */
+		/* Block raw levels (second differences centred in the block),
+		 * then the global level. */
+		double *dd = w.lb; /* free until the prominences */
+		for (size_t i = 1; i + 1 < n; i++)
+			dd[i] = fabs(w.y[i - 1] - 2.0 * w.y[i] + w.y[i + 1]);
 		for (size_t b = 0; b < nb; b++) {
 			size_t a = b * NOISE_BLOCK, e = a + NOISE_BLOCK;
-			if (e > n)
-				e = n;
-			size_t a1 = a > 0 ? a - 1 : 0, e1 = e < n ? e + 1 : n;
-			bn[b] = (e1 - a1 >= 3) ? noise_of(w.y + a1, e1 - a1, w.scratch) : 0.0;
+			if (e > n - 1)
+				e = n - 1;
+			bn[b] = noise_of(dd, a > 0 ? a : 1, e, w.scratch);
 		}
-		sigma = noise_of(w.y, n, w.scratch);
+		sigma = noise_of(dd, 1, n - 1, w.scratch);
 		if (sigma < 1e-5 * range)
 			sigma = 1e-5 * range;
 		/* Quantised data without visible noise (a flat run of one stored
