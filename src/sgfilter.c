@@ -12,60 +12,34 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#ifdef __SSE2__
+#include <emmintrin.h>
+#endif
 
 #define SG_MAX_ORDER 8
 
-/* Solves the (order+1)-square system g z = w in place by Gaussian
- * elimination with partial pivoting; g is row-major. Returns 0 or -1. */
-static int solve_small(double *g, double *w, int m)
-{
-	for (int col = 0; col < m; col++) {
-		int piv = col;
-		for (int r = col + 1; r < m; r++)
-			if (fabs(g[r * m + col]) > fabs(g[piv * m + col]))
-				piv = r;
-		if (fabs(g[piv * m + col]) < 1e-300)
-			return -1;
-		if (piv != col) {
-			for (int k = 0; k < m; k++) {
-				double t = g[col * m + k];
-				g[col * m + k] = g[piv * m + k];
-				g[piv * m + k] = t;
-			}
-			double t = w[col];
-			w[col] = w[piv];
-			w[piv] = t;
-		}
-		for (int r = col + 1; r < m; r++) {
-			double f = g[r * m + col] / g[col * m + col];
-			if (f == 0.0)
-				continue;
-			for (int k = col; k < m; k++)
-				g[r * m + k] -= f * g[col * m + k];
-			w[r] -= f * w[col];
-		}
-	}
-	for (int r = m - 1; r >= 0; r--) {
-		double s = w[r];
-		for (int k = r + 1; k < m; k++)
-			s -= g[r * m + k] * w[k];
-		w[r] = s / g[r * m + r];
-	}
-	return 0;
-}
+/* The normal equations G z = w of the local polynomial fit, G_ab = sum_j
+ * u_j^(a+b), reduced once by Gaussian elimination with partial pivoting;
+ * the row swaps and multipliers are kept so that each right-hand side
+ * (one per derivative and evaluation point) is solved with exactly the
+ * operations a full elimination would do on it. */
+typedef struct sg_fit {
+	int half, order, m;
+	double g[(SG_MAX_ORDER + 1) * (SG_MAX_ORDER + 1)]; /* upper triangle after reduction */
+	double f[(SG_MAX_ORDER + 1) * (SG_MAX_ORDER + 1)]; /* f[col*m+r]: multiplier */
+	int piv[SG_MAX_ORDER + 1];
+} sg_fit;
 
-int irr_sg__coefficients(int half, int order, int deriv, int at, double *c)
+static int fit_prepare(sg_fit *F, int half, int order)
 {
 	int m = order + 1;
-	double g[(SG_MAX_ORDER + 1) * (SG_MAX_ORDER + 1)];
-	double w[SG_MAX_ORDER + 1];
-	double scale;
-	if (half < 1 || order < 0 || order > SG_MAX_ORDER || order > 2 * half ||
-	    deriv < 0 || deriv > order || at < -half || at > half)
-		return IRR_EINPUT;
+	double *g = F->g;
 	/* The abscissa is scaled to u = j/half so the normal equations stay
 	 * well conditioned for wide windows and high degrees. */
-	scale = (double)half;
+	double scale = (double)half;
+	F->half = half;
+	F->order = order;
+	F->m = m;
 	/* Power sums S_p = sum_j u_j^p, p = 0..2*order, by repeated products
 	 * (pow() here was the picker's largest cost). */
 	{
@@ -83,6 +57,39 @@ int irr_sg__coefficients(int half, int order, int deriv, int at, double *c)
 			for (int b = 0; b < m; b++)
 				g[a * m + b] = ps[a + b];
 	}
+	for (int col = 0; col < m; col++) {
+		int piv = col;
+		for (int r = col + 1; r < m; r++)
+			if (fabs(g[r * m + col]) > fabs(g[piv * m + col]))
+				piv = r;
+		if (fabs(g[piv * m + col]) < 1e-300)
+			return -1;
+		F->piv[col] = piv;
+		if (piv != col)
+			for (int k = 0; k < m; k++) {
+				double t = g[col * m + k];
+				g[col * m + k] = g[piv * m + k];
+				g[piv * m + k] = t;
+			}
+		for (int r = col + 1; r < m; r++) {
+			double f = g[r * m + col] / g[col * m + col];
+			F->f[col * m + r] = f;
+			if (f == 0.0)
+				continue;
+			for (int k = col; k < m; k++)
+				g[r * m + k] -= f * g[col * m + k];
+		}
+	}
+	return 0;
+}
+
+/* Coefficients c[0..2*half] of the `deriv`-th derivative (per point index)
+ * of the fit, evaluated at offset `at` from the window's centre. */
+static void fit_coefficients(const sg_fit *F, int deriv, int at, double *c)
+{
+	int m = F->m, half = F->half;
+	const double *g = F->g;
+	double w[SG_MAX_ORDER + 1], scale = (double)half;
 	/* w_k = d^deriv/du^deriv u^k at u = at/half. */
 	{
 		double u = (double)at / scale;
@@ -99,8 +106,26 @@ int irr_sg__coefficients(int half, int order, int deriv, int at, double *c)
 			w[k] = f * t;
 		}
 	}
-	if (solve_small(g, w, m) != 0)
-		return IRR_EINPUT;
+	for (int col = 0; col < m; col++) {
+		int piv = F->piv[col];
+		if (piv != col) {
+			double t = w[col];
+			w[col] = w[piv];
+			w[piv] = t;
+		}
+		for (int r = col + 1; r < m; r++) {
+			double f = F->f[col * m + r];
+			if (f == 0.0)
+				continue;
+			w[r] -= f * w[col];
+		}
+	}
+	for (int r = m - 1; r >= 0; r--) {
+		double s = w[r];
+		for (int k = r + 1; k < m; k++)
+			s -= g[r * m + k] * w[k];
+		w[r] = s / g[r * m + r];
+	}
 	for (int j = -half; j <= half; j++) {
 		double u = (double)j / scale, s = 0.0, p = 1.0;
 		for (int k = 0; k < m; k++) {
@@ -113,6 +138,17 @@ int irr_sg__coefficients(int half, int order, int deriv, int at, double *c)
 			sd *= scale;
 		c[j + half] = s / sd;
 	}
+}
+
+int irr_sg__coefficients(int half, int order, int deriv, int at, double *c)
+{
+	sg_fit F;
+	if (half < 1 || order < 0 || order > SG_MAX_ORDER || order > 2 * half ||
+	    deriv < 0 || deriv > order || at < -half || at > half)
+		return IRR_EINPUT;
+	if (fit_prepare(&F, half, order) != 0)
+		return IRR_EINPUT;
+	fit_coefficients(&F, deriv, at, c);
 	return IRR_OK;
 }
 
@@ -128,25 +164,23 @@ double irr_sg__noise_gain(int half, int order, int deriv)
 
 /* The first and last `half` points: the end windows' polynomials
  * evaluated off-centre. c is scratch of 2*half+1. */
-static int ends(const double *y, size_t n, int half, int order, int deriv, double *c,
-                double *out)
+static void ends(const double *y, size_t n, const sg_fit *F, int deriv, double *c,
+                 double *out)
 {
+	int half = F->half;
 	size_t w = (size_t)(2 * half + 1);
 	for (int k = 0; k < half; k++) {
 		double s = 0.0;
-		if (irr_sg__coefficients(half, order, deriv, k - half, c) != IRR_OK)
-			return IRR_EINPUT;
+		fit_coefficients(F, deriv, k - half, c);
 		for (size_t j = 0; j < w; j++)
 			s += c[j] * y[j];
 		out[k] = s;
-		if (irr_sg__coefficients(half, order, deriv, half - k, c) != IRR_OK)
-			return IRR_EINPUT;
+		fit_coefficients(F, deriv, half - k, c);
 		s = 0.0;
 		for (size_t j = 0; j < w; j++)
 			s += c[j] * y[n - w + j];
 		out[n - 1 - (size_t)k] = s;
 	}
-	return IRR_OK;
 }
 
 int irr_sg__apply(const double *y, size_t n, int half, int order, int deriv,
@@ -154,7 +188,7 @@ int irr_sg__apply(const double *y, size_t n, int half, int order, int deriv,
 {
 	size_t w;
 	double *c;
-	int rc;
+	sg_fit F;
 	if (!y || !out || n == 0 || half < 1 || order < 0 || order > 2 * half ||
 	    order > SG_MAX_ORDER || deriv < 0 || deriv > order)
 		return IRR_EINPUT;
@@ -170,13 +204,12 @@ int irr_sg__apply(const double *y, size_t n, int half, int order, int deriv,
 		return IRR_EINPUT;
 	}
 	w = (size_t)(2 * half + 1);
+	if (fit_prepare(&F, half, order) != 0)
+		return IRR_EINPUT;
 	c = malloc(w * sizeof *c);
 	if (!c)
 		return IRR_ENOMEM;
-	if (irr_sg__coefficients(half, order, deriv, 0, c) != IRR_OK) {
-		free(c);
-		return IRR_EINPUT;
-	}
+	fit_coefficients(&F, deriv, 0, c);
 	for (size_t i = (size_t)half; i + (size_t)half < n; i++) {
 		const double *p = y + i - (size_t)half;
 		double s = 0.0;
@@ -184,9 +217,9 @@ int irr_sg__apply(const double *y, size_t n, int half, int order, int deriv,
 			s += c[j] * p[j];
 		out[i] = s;
 	}
-	rc = ends(y, n, half, order, deriv, c, out);
+	ends(y, n, &F, deriv, c, out);
 	free(c);
-	return rc;
+	return IRR_OK;
 }
 
 int irr_sg__smooth_d2(const double *y, size_t n, int half, int order, double *s0,
@@ -194,17 +227,41 @@ int irr_sg__smooth_d2(const double *y, size_t n, int half, int order, double *s0
 {
 	double c0[2 * 50 + 1], c2[2 * 50 + 1];
 	size_t h;
-	int rc;
+	sg_fit F;
 	if (!y || !s0 || !s2 || half < 1 || half > 50 || order < 2 || order > 2 * half ||
 	    order > SG_MAX_ORDER || (size_t)(2 * half + 1) > n)
 		return IRR_EINPUT;
-	if (irr_sg__coefficients(half, order, 0, 0, c0) != IRR_OK ||
-	    irr_sg__coefficients(half, order, 2, 0, c2) != IRR_OK)
+	if (fit_prepare(&F, half, order) != 0)
 		return IRR_EINPUT;
+	fit_coefficients(&F, 0, 0, c0);
+	fit_coefficients(&F, 2, 0, c2);
 	h = (size_t)half;
 	/* Both centre sets are symmetric (even derivatives): fold the window
-	 * once, y[i-k] + y[i+k], and use it for both outputs. */
-	for (size_t i = h; i + h < n; i++) {
+	 * once, y[i-k] + y[i+k], and use it for both outputs. Two neighbouring
+	 * outputs at a time in SSE2 lanes, each with the scalar loop's own
+	 * operations in its order, so the sums are the same to the bit. */
+	size_t i0 = h;
+#ifdef __SSE2__
+	{
+		__m128d k0[51], k2[51];
+		for (size_t k = 0; k <= h; k++) {
+			k0[k] = _mm_set1_pd(c0[h + k]);
+			k2[k] = _mm_set1_pd(c2[h + k]);
+		}
+		for (; i0 + 1 + h < n; i0 += 2) {
+			__m128d yi = _mm_loadu_pd(y + i0);
+			__m128d a0 = _mm_mul_pd(k0[0], yi), a2 = _mm_mul_pd(k2[0], yi);
+			for (size_t k = 1; k <= h; k++) {
+				__m128d f = _mm_add_pd(_mm_loadu_pd(y + i0 - k), _mm_loadu_pd(y + i0 + k));
+				a0 = _mm_add_pd(a0, _mm_mul_pd(k0[k], f));
+				a2 = _mm_add_pd(a2, _mm_mul_pd(k2[k], f));
+			}
+			_mm_storeu_pd(s0 + i0, a0);
+			_mm_storeu_pd(s2 + i0, a2);
+		}
+	}
+#endif
+	for (size_t i = i0; i + h < n; i++) {
 		double a0 = c0[h] * y[i], a2 = c2[h] * y[i];
 		for (size_t k = 1; k <= h; k++) {
 			double f = y[i - k] + y[i + k];
@@ -214,7 +271,7 @@ int irr_sg__smooth_d2(const double *y, size_t n, int half, int order, double *s0
 		s0[i] = a0;
 		s2[i] = a2;
 	}
-	if ((rc = ends(y, n, half, order, 0, c0, s0)) != IRR_OK)
-		return rc;
-	return ends(y, n, half, order, 2, c2, s2);
+	ends(y, n, &F, 0, c0, s0);
+	ends(y, n, &F, 2, c2, s2);
+	return IRR_OK;
 }
