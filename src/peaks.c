@@ -317,37 +317,50 @@ static void hull_baseline(const double *x, const double *y, size_t n,
 		base[0] = y[0];
 }
 
-/* Bases for topographic prominence. For every i, lb[i] = the lowest value
- * between i and the nearest point to its left that is strictly higher (or
- * the start), rb[i] likewise to the right (nearest point higher or equal,
- * so a flat top counts once). Monotonic stack of indices with decreasing
- * values; each entry carries the minimum of its own segment: O(n). */
+/* Bases for topographic prominence. For every maximum i, lb[i] = the
+ * lowest value between i and the nearest point to its left that is
+ * strictly higher (or the start), rb[i] likewise to the right (nearest
+ * point higher or equal, so a flat top counts once). Monotonic stack of
+ * values, decreasing; each entry carries the minimum of its own segment:
+ * O(n). Points inside a strictly monotone stretch (a lower neighbour on
+ * one side, a higher on the other) are skipped: they are no maximum, the
+ * lowest point of a stretch is at one of its ends, and the first point
+ * higher than a maximum, if skipped, lies on a slope whose far end is
+ * higher still, with nothing lower in between. lb and rb are written only
+ * where they are defined that way: at the points not skipped, which
+ * include every maximum. sval and smin are scratch of n. */
 static void prominence_bases(const double *c, size_t n, double *lb, double *rb,
-                             size_t *stk, double *smin)
+                             double *sval, double *smin)
 {
 	size_t top = 0;
 	for (size_t i = 0; i < n; i++) {
-		double m = c[i];
-		while (top > 0 && c[stk[top - 1]] <= c[i]) {
+		double v = c[i], m = v;
+		if (i > 0 && i + 1 < n &&
+		    ((c[i - 1] < v && v < c[i + 1]) || (c[i - 1] > v && v > c[i + 1])))
+			continue;
+		while (top > 0 && sval[top - 1] <= v) {
 			if (smin[top - 1] < m)
 				m = smin[top - 1];
 			top--;
 		}
 		lb[i] = m;
-		stk[top] = i;
+		sval[top] = v;
 		smin[top] = m;
 		top++;
 	}
 	top = 0;
 	for (size_t ii = n; ii-- > 0;) {
-		double m = c[ii];
-		while (top > 0 && c[stk[top - 1]] < c[ii]) {
+		double v = c[ii], m = v;
+		if (ii > 0 && ii + 1 < n &&
+		    ((c[ii - 1] < v && v < c[ii + 1]) || (c[ii - 1] > v && v > c[ii + 1])))
+			continue;
+		while (top > 0 && sval[top - 1] < v) {
 			if (smin[top - 1] < m)
 				m = smin[top - 1];
 			top--;
 		}
 		rb[ii] = m;
-		stk[top] = ii;
+		sval[top] = v;
 		smin[top] = m;
 		top++;
 	}
@@ -834,7 +847,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 	}
 
 	/* Maxima by prominence. */
-	prominence_bases(w.c, n, w.lb, w.rb, w.stk, w.smin);
+	prominence_bases(w.c, n, w.lb, w.rb, w.base, w.smin); /* base: free now */
 	{
 		double hmax = 0.0;
 		memset(w.keep, 0, n);
@@ -1017,8 +1030,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 			size_t *sig = w.stk + nk, ns = 0; /* significant lobes, after kidx */
 			for (size_t i = 0; i < n; i++)
 				nd2[i] = -w.d2[i];
-			/* w.stk holds kidx and sig; the stack is stk2. */
-			prominence_bases(nd2, n, w.lb, w.rb, w.stk2, w.smin);
+			prominence_bases(nd2, n, w.lb, w.rb, w.base, w.smin);
 			for (size_t i = 1; i + 1 < n; i++) {
 				if (!(nd2[i] > nd2[i - 1] && nd2[i] >= nd2[i + 1] && nd2[i] > 0.0))
 					continue;
