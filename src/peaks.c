@@ -290,31 +290,42 @@ static double noise_of(const double *dd, size_t a, size_t e, double *scratch)
 }
 
 /* Lower convex hull of (x, y) by Andrew's monotone chain (x ascending),
- * linearly interpolated onto every point. idx is scratch of n entries. */
-static void hull_baseline(const double *x, const double *y, size_t n,
-                          double *base, size_t *idx)
+ * linearly interpolated onto every point and taken off: c = y - hull,
+ * r = raw - hull (r may be y's own storage: each point is read before it
+ * is written). idx is scratch of n entries, hx and hy of n values (the
+ * chain's vertices, so the turn test reads them without indirection). */
+static void hull_subtract(const double *x, const double *y, const double *raw, size_t n,
+                          double *c, double *r, size_t *idx, double *hx, double *hy)
 {
 	size_t k = 0;
 	for (size_t i = 0; i < n; i++) {
+		double xi = x[i], yi = y[i];
 		while (k >= 2) {
-			size_t a = idx[k - 2], b = idx[k - 1];
 			/* Pop b while it lies on or above the chord a-i. */
-			double cross = (x[b] - x[a]) * (y[i] - y[a]) - (y[b] - y[a]) * (x[i] - x[a]);
+			double xa = hx[k - 2], ya = hy[k - 2];
+			double cross = (hx[k - 1] - xa) * (yi - ya) - (hy[k - 1] - ya) * (xi - xa);
 			if (cross <= 0.0)
 				k--;
 			else
 				break;
 		}
-		idx[k++] = i;
+		idx[k] = i;
+		hx[k] = xi;
+		hy[k] = yi;
+		k++;
 	}
 	for (size_t h = 0; h + 1 < k; h++) {
 		size_t a = idx[h], b = idx[h + 1];
-		double slope = (y[b] - y[a]) / (x[b] - x[a]);
-		for (size_t i = a; i <= b; i++)
-			base[i] = y[a] + slope * (x[i] - x[a]);
+		double slope = (y[b] - y[a]) / (x[b] - x[a]), ya = y[a], xa = x[a];
+		/* The vertex b is done by the next segment, as a is by this one:
+		 * each point once; the last segment also does its end. */
+		size_t end = h + 2 == k ? b + 1 : b;
+		for (size_t i = a; i < end; i++) {
+			double base = ya + slope * (x[i] - xa);
+			c[i] = y[i] - base;
+			r[i] = raw[i] - base;
+		}
 	}
-	if (k == 1)
-		base[0] = y[0];
 }
 
 /* Bases for topographic prominence. For every maximum i, lb[i] = the
@@ -574,23 +585,24 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 	if (n0 < 5)
 		return irr_error_set(err, IRR_EINPUT, name, 0,
 		                     "%zu points are too few to pick peaks (need 5)", n0);
+	/* In one pass: every value finite, x strictly ascending, and the
+	 * spacing uniform (every step within 2 % of the mean step; else the
+	 * median step for resampling). The mean step is only meaningful once
+	 * the whole axis has passed the checks, which it must to go on. */
+	med = (x0[n0 - 1] - x0[0]) / (double)(n0 - 1);
 	for (size_t i = 0; i < n0; i++) {
 		if (!isfinite(x0[i]) || !isfinite(y0[i]))
 			return irr_error_set(err, IRR_EINPUT, name, 0,
 			                     "point %zu is not a finite number", i + 1);
-		if (i > 0 && !(x0[i] > x0[i - 1]))
-			return irr_error_set(err, IRR_EINPUT, name, 0,
-			                     "wavenumbers must be strictly ascending (point %zu)", i + 1);
-	}
-
-	/* Uniform spacing (every step within 2 % of the mean step), else the
-	 * median step for resampling. */
-	med = (x0[n0 - 1] - x0[0]) / (double)(n0 - 1);
-	for (size_t i = 0; i + 1 < n0; i++)
-		if (fabs((x0[i + 1] - x0[i]) - med) > 0.02 * med) {
-			uniform = 0;
-			break;
+		if (i > 0) {
+			double step = x0[i] - x0[i - 1];
+			if (!(x0[i] > x0[i - 1]))
+				return irr_error_set(err, IRR_EINPUT, name, 0,
+				                     "wavenumbers must be strictly ascending (point %zu)", i + 1);
+			if (fabs(step - med) > 0.02 * med)
+				uniform = 0;
 		}
+	}
 	if (!uniform) {
 		double *tmp = malloc((n0 - 1) * sizeof *tmp);
 		if (!tmp)
@@ -715,13 +727,15 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 			w.satm[i] |= 2;
 	}
 
-	if (o->baseline)
-		hull_baseline(w.x, w.s, n, w.base, w.stk);
-	else
-		memset(w.base, 0, n * sizeof(double));
-	for (size_t i = 0; i < n; i++) {
-		w.c[i] = w.s[i] - w.base[i];
-		w.r[i] = w.y[i] - w.base[i]; /* r is s's storage, no longer needed */
+	/* c: the smoothed trace above the baseline; r (s's storage, read
+	 * point by point before it is overwritten): the unsmoothed one. */
+	if (o->baseline) {
+		hull_subtract(w.x, w.s, w.y, n, w.c, w.r, w.stk, w.lb, w.rb);
+	} else {
+		for (size_t i = 0; i < n; i++) {
+			w.c[i] = w.s[i] - 0.0;
+			w.r[i] = w.y[i] - 0.0;
+		}
 	}
 
 	/* Noise. sigma: the global robust level of the raw trace (white-noise
@@ -739,20 +753,30 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 	 * white level. A floor keeps noise-free (synthetic or heavily
 	 * quantised) data from giving 0. */
 	{
-		double range = 0.0, lo = w.y[0], hi = w.y[0];
+		double range = 0.0, lo = w.y[0], hi = w.y[0], q = HUGE_VAL;
 		double *bn = w.blk, *bd = w.blk + nb;
-		for (size_t i = 0; i < n; i++) {
-			if (w.y[i] < lo)
-				lo = w.y[i];
-			if (w.y[i] > hi)
-				hi = w.y[i];
+		double *dd = w.lb; /* free until the prominences */
+		/* One pass: the range, the second differences (for the block and
+		 * global levels) and the smallest nonzero step (for the
+		 * quantisation floor below). */
+		for (size_t i = 0; i + 1 < n; i++) {
+			double v = w.y[i], d = fabs(w.y[i + 1] - v);
+			if (v < lo)
+				lo = v;
+			if (v > hi)
+				hi = v;
+			if (d > 0.0 && d < q)
+				q = d;
+			if (i > 0)
+				dd[i] = fabs(w.y[i - 1] - 2.0 * v + w.y[i + 1]);
 		}
+		if (w.y[n - 1] < lo)
+			lo = w.y[n - 1];
+		if (w.y[n - 1] > hi)
+			hi = w.y[n - 1];
 		range = hi - lo;
 		/* Block raw levels (second differences centred in the block),
 		 * then the global level. */
-		double *dd = w.lb; /* free until the prominences */
-		for (size_t i = 1; i + 1 < n; i++)
-			dd[i] = fabs(w.y[i - 1] - 2.0 * w.y[i] + w.y[i + 1]);
 		for (size_t b = 0; b < nb; b++) {
 			size_t a = b * NOISE_BLOCK, e = a + NOISE_BLOCK;
 			if (e > n - 1)
@@ -766,16 +790,8 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		 * integer): the rounding error, sd q/sqrt(12) for a step q
 		 * (uniform quantisation noise; B. Widrow, IRE Trans. Circuit
 		 * Theory 3 (1956) 266), is the least noise there is. */
-		{
-			double q = HUGE_VAL;
-			for (size_t i = 0; i + 1 < n; i++) {
-				double d = fabs(w.y[i + 1] - w.y[i]);
-				if (d > 0.0 && d < q)
-					q = d;
-			}
-			if (q < HUGE_VAL && sigma < q / sqrt(12.0))
-				sigma = q / sqrt(12.0);
-		}
+		if (q < HUGE_VAL && sigma < q / sqrt(12.0))
+			sigma = q / sqrt(12.0);
 		if (sigma <= 0.0)
 			sigma = 1e-12;
 		for (size_t b = 0; b < nb; b++) {
