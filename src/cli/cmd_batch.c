@@ -19,6 +19,7 @@
 #include <unistd.h>
 
 #include "cli/cli.h"
+#include "cli/cmd_check.h"
 #include "irrecon/batch.h"
 #include "irrecon/common.h"
 #include "irrecon/reconcile.h"
@@ -46,6 +47,8 @@ static const opt_def opts[] = {
 	{"--tables", "DIR", "group-frequency tables folder (default: $IRRECON_TABLES,\n"
 	                    "                       else the installed tables)"},
 	{"--add-table", "FILE", "an extra group table; repeatable"},
+	{"--max-bytes", "N", "refuse input files larger than N bytes (default 256 MiB)"},
+	{"--max-points", "N", "refuse spectra of more than N points (default 4,000,000)"},
 	{"--timing", NULL, "print the time spent per stage on stderr"},
 	{"--quiet", NULL, "no progress bar and no summary"},
 	{"--help", NULL, "show this help"},
@@ -729,6 +732,16 @@ int cmd_batch(int argc, char **argv)
 				status = cli_usage_error("batch", "--format is csv or jsonl, not '%s'", v);
 				goto done;
 			}
+		} else if (!strcmp(a, "--max-bytes") || !strcmp(a, "--max-points")) {
+			size_t n;
+			if (cli_parse_count(a, v, &n)) {
+				status = cli_usage_error("batch", "%s needs a whole number >= 1, not '%s'", a, v);
+				goto done;
+			}
+			if (!strcmp(a, "--max-bytes"))
+				irr_request_read_options(base)->max_bytes = n;
+			else
+				irr_request_read_options(base)->max_points = n;
 		} else if (!strcmp(a, "--allow-outside")) {
 			allow_outside = 1;
 		} else if (!strcmp(a, "--phase")) {
