@@ -590,6 +590,22 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 	 * median step for resampling). The mean step is only meaningful once
 	 * the whole axis has passed the checks, which it must to go on. */
 	med = (x0[n0 - 1] - x0[0]) / (double)(n0 - 1);
+	{
+		/* Fast check first: a strictly ascending axis with finite ends is
+		 * finite throughout, and y*0 is 0 for every finite y (NaN else).
+		 * Only when it fails does the loop below find the point to name. */
+		int ok = isfinite(x0[0]) && isfinite(x0[n0 - 1]);
+		double z = y0[0] * 0.0;
+		for (size_t i = 1; i < n0; i++) {
+			ok &= x0[i] > x0[i - 1];
+			if (fabs((x0[i] - x0[i - 1]) - med) > 0.02 * med)
+				uniform = 0;
+			z += y0[i] * 0.0;
+		}
+		if (ok && z == 0.0)
+			goto checked;
+		uniform = 1;
+	}
 	for (size_t i = 0; i < n0; i++) {
 		if (!isfinite(x0[i]) || !isfinite(y0[i]))
 			return irr_error_set(err, IRR_EINPUT, name, 0,
@@ -603,6 +619,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 				uniform = 0;
 		}
 	}
+checked:
 	if (!uniform) {
 		double *tmp = malloc((n0 - 1) * sizeof *tmp);
 		if (!tmp)
@@ -904,7 +921,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 	 * bound the width walk and the area. */
 	{
 		size_t *kidx = w.stk; /* reuse: indices of kept maxima */
-		size_t nk = 0;
+		size_t nk = 0, next_lv = 0;
 		for (size_t i = 0; i < n; i++)
 			if (w.keep[i] & 1)
 				kidx[nk++] = i;
@@ -915,7 +932,33 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 			double off, h;
 			/* Left valley: argmin of c between the previous kept maximum
 			 * (or the start) and i; likewise right. */
-			{
+			if (nsat == 0) {
+				/* No walls: the stretch between two neighbours is
+				 * scanned once for both valleys, the right one of this
+				 * maximum (the first lowest point) and the left one of
+				 * the next (the last lowest point). */
+				size_t b = q + 1 < nk ? kidx[q + 1] : n - 1, last;
+				double mn = w.c[i];
+				if (q == 0) {
+					lv = i;
+					for (size_t j = i; j > 0; j--)
+						if (w.c[j - 1] < w.c[lv])
+							lv = j - 1;
+				} else {
+					lv = next_lv;
+				}
+				rv = last = i;
+				for (size_t j = i + 1; j <= b; j++) {
+					double v = w.c[j];
+					if (v < mn) {
+						mn = v;
+						rv = last = j;
+					} else if (v == mn) {
+						last = j;
+					}
+				}
+				next_lv = last;
+			} else {
 				size_t a = q > 0 ? kidx[q - 1] : 0, j;
 				/* A saturated range is a wall: its band is not ours. */
 				lv = i;
@@ -1020,14 +1063,15 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 				double a = 0.0, x1 = w.x[lv], x2 = w.x[rv];
 				double y1 = w.c[lv] > 0.0 ? w.c[lv] : 0.0, y2 = w.c[rv] > 0.0 ? w.c[rv] : 0.0;
 				double sl = x2 > x1 ? (y2 - y1) / (x2 - x1) : 0.0;
+				double u = w.c[lv] - (y1 + sl * (w.x[lv] - x1));
+				if (u < 0.0)
+					u = 0.0;
 				for (size_t j = lv; j < rv; j++) {
-					double u = w.c[j] - (y1 + sl * (w.x[j] - x1));
 					double v = w.c[j + 1] - (y1 + sl * (w.x[j + 1] - x1));
-					if (u < 0.0)
-						u = 0.0;
 					if (v < 0.0)
 						v = 0.0;
 					a += 0.5 * (u + v) * (w.x[j + 1] - w.x[j]);
+					u = v;
 				}
 				p.area = a;
 			}
