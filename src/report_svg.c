@@ -7,6 +7,7 @@
  * shape as well as by colour, so the plot reads in grey print. Output is
  * deterministic: fixed decimals, no dates, no random ids. */
 #include "irrecon/report.h"
+#include "buf.h"
 
 #include <math.h>
 #include <stdarg.h>
@@ -14,62 +15,8 @@
 #include <stdlib.h>
 #include <string.h>
 
-/* ---- Text buffer ---- */
-
-typedef struct sbuf {
-	char *p;
-	size_t len, cap;
-	int oom;
-} sbuf;
-
-static void sb_add(sbuf *b, const char *s, size_t n)
-{
-	if (b->oom)
-		return;
-	if (b->len + n + 1 > b->cap) {
-		size_t cap = b->cap ? b->cap : 16384;
-		char *np;
-		while (cap < b->len + n + 1)
-			cap *= 2;
-		np = realloc(b->p, cap);
-		if (!np) {
-			b->oom = 1;
-			return;
-		}
-		b->p = np;
-		b->cap = cap;
-	}
-	memcpy(b->p + b->len, s, n);
-	b->len += n;
-	b->p[b->len] = '\0';
-}
-
-static void sb_str(sbuf *b, const char *s)
-{
-	sb_add(b, s, strlen(s));
-}
-
-/* printf for the SVG: every %f-style number must come through num(), so
- * this takes strings and integers only. */
-static void sb_printf(sbuf *b, const char *fmt, ...)
-#if defined(__GNUC__)
-	__attribute__((format(printf, 2, 3)))
-#endif
-	;
-static void sb_printf(sbuf *b, const char *fmt, ...)
-{
-	char tmp[1024];
-	va_list ap;
-	int n;
-	va_start(ap, fmt);
-	n = vsnprintf(tmp, sizeof tmp, fmt, ap);
-	va_end(ap);
-	if (n < 0)
-		return;
-	if ((size_t)n >= sizeof tmp)
-		n = sizeof tmp - 1;
-	sb_add(b, tmp, (size_t)n);
-}
+/* ---- Text buffer: irr_buf (buf.h); every %f-style number goes
+ * through num(), so irr_buf__printf takes strings and integers only. */
 
 /* Coordinates with one decimal, locale-independent; a ring of buffers so a
  * few can appear in one sb_printf call. */
@@ -135,16 +82,16 @@ static char *clean_utf8(const char *s)
 	return o;
 }
 
-static void sb_xml(sbuf *b, const char *s)
+static void sb_xml(irr_buf *b, const char *s)
 {
 	for (; *s; s++) {
 		switch (*s) {
-		case '&': sb_str(b, "&amp;"); break;
-		case '<': sb_str(b, "&lt;"); break;
-		case '>': sb_str(b, "&gt;"); break;
-		case '"': sb_str(b, "&quot;"); break;
-		case '\'': sb_str(b, "&#39;"); break;
-		default: sb_add(b, s, 1);
+		case '&': irr_buf__str(b, "&amp;"); break;
+		case '<': irr_buf__str(b, "&lt;"); break;
+		case '>': irr_buf__str(b, "&gt;"); break;
+		case '"': irr_buf__str(b, "&quot;"); break;
+		case '\'': irr_buf__str(b, "&#39;"); break;
+		default: irr_buf__add(b, s, 1);
 		}
 	}
 }
@@ -213,16 +160,16 @@ static char *fit_text(const char *s, double size, int bold, double width)
 }
 
 /* One <text> element. anchor: 's' start, 'm' middle, 'e' end. */
-static void put_text(sbuf *b, double x, double y, double size, int bold,
+static void put_text(irr_buf *b, double x, double y, double size, int bold,
                      char anchor, const char *fill, const char *extra,
                      const char *text)
 {
-	sb_printf(b, "<text x=\"%s\" y=\"%s\" font-size=\"%s\"%s%s fill=\"%s\"%s>",
+	irr_buf__printf(b, "<text x=\"%s\" y=\"%s\" font-size=\"%s\"%s%s fill=\"%s\"%s>",
 	          num(x), num(y), num(size), bold ? " font-weight=\"bold\"" : "",
 	          anchor == 'm' ? " text-anchor=\"middle\"" : anchor == 'e' ? " text-anchor=\"end\"" : "",
 	          fill, extra ? extra : "");
 	sb_xml(b, text);
-	sb_str(b, "</text>\n");
+	irr_buf__str(b, "</text>\n");
 }
 
 /* ---- The plot model: what is drawn, independent of where it came from ---- */
@@ -339,47 +286,47 @@ static const char *status_word_band(irr_band_status s)
 	return irr_band_status_name(s);
 }
 
-static void put_defs(sbuf *b, const layout *L)
+static void put_defs(irr_buf *b, const layout *L)
 {
-	sb_str(b, "<defs>\n");
+	irr_buf__str(b, "<defs>\n");
 	/* found: light solid tint; saturated: cross-hatch; missing: dense
 	 * diagonal hatch; unobservable: sparse dots. */
-	sb_printf(b, "<pattern id=\"irr-pat-found\" width=\"6\" height=\"6\" patternUnits=\"userSpaceOnUse\">"
+	irr_buf__printf(b, "<pattern id=\"irr-pat-found\" width=\"6\" height=\"6\" patternUnits=\"userSpaceOnUse\">"
 	             "<rect width=\"6\" height=\"6\" fill=\"%s\" fill-opacity=\"0.16\"/></pattern>\n", C_FOUND);
-	sb_printf(b, "<pattern id=\"irr-pat-saturated\" width=\"8\" height=\"8\" patternUnits=\"userSpaceOnUse\">"
+	irr_buf__printf(b, "<pattern id=\"irr-pat-saturated\" width=\"8\" height=\"8\" patternUnits=\"userSpaceOnUse\">"
 	             "<rect width=\"8\" height=\"8\" fill=\"%s\" fill-opacity=\"0.07\"/>"
 	             "<path d=\"M0 4H8M4 0V8\" stroke=\"%s\" stroke-opacity=\"0.32\" stroke-width=\"0.7\"/></pattern>\n",
 	          C_SATURATED, C_SATURATED);
-	sb_printf(b, "<pattern id=\"irr-pat-missing\" width=\"6\" height=\"6\" patternUnits=\"userSpaceOnUse\" patternTransform=\"rotate(45)\">"
+	irr_buf__printf(b, "<pattern id=\"irr-pat-missing\" width=\"6\" height=\"6\" patternUnits=\"userSpaceOnUse\" patternTransform=\"rotate(45)\">"
 	             "<rect width=\"6\" height=\"6\" fill=\"%s\" fill-opacity=\"0.08\"/>"
 	             "<path d=\"M0 0V6\" stroke=\"%s\" stroke-opacity=\"0.55\" stroke-width=\"1.4\"/></pattern>\n",
 	          C_MISSING, C_MISSING);
-	sb_printf(b, "<pattern id=\"irr-pat-unobservable\" width=\"7\" height=\"7\" patternUnits=\"userSpaceOnUse\">"
+	irr_buf__printf(b, "<pattern id=\"irr-pat-unobservable\" width=\"7\" height=\"7\" patternUnits=\"userSpaceOnUse\">"
 	             "<circle cx=\"3.5\" cy=\"3.5\" r=\"1\" fill=\"%s\" fill-opacity=\"0.6\"/></pattern>\n", C_UNOBS);
-	sb_printf(b, "<clipPath id=\"irr-clip-plot\"><rect x=\"%s\" y=\"%s\" width=\"%s\" height=\"%s\"/></clipPath>\n",
+	irr_buf__printf(b, "<clipPath id=\"irr-clip-plot\"><rect x=\"%s\" y=\"%s\" width=\"%s\" height=\"%s\"/></clipPath>\n",
 	          num(L->left), num(L->top), num(L->right - L->left), num(L->bottom - L->top));
-	sb_str(b, "</defs>\n");
+	irr_buf__str(b, "</defs>\n");
 }
 
 /* Marker shapes: explained = filled circle, attributed = open diamond,
  * unexplained = filled triangle pointing at the band. `dir` is -1 when the
  * band points up (absorbance), +1 when it points down (%T). */
-static void put_marker(sbuf *b, irr_peak_status st, double x, double y, int dir)
+static void put_marker(irr_buf *b, irr_peak_status st, double x, double y, int dir)
 {
 	switch (st) {
 	case IRR_PEAK_EXPLAINED:
-		sb_printf(b, "<circle cx=\"%s\" cy=\"%s\" r=\"3.6\" fill=\"%s\" stroke=\"%s\" stroke-width=\"0.8\"/>\n",
+		irr_buf__printf(b, "<circle cx=\"%s\" cy=\"%s\" r=\"3.6\" fill=\"%s\" stroke=\"%s\" stroke-width=\"0.8\"/>\n",
 		          num(x), num(y), C_EXPLAINED, INK);
 		break;
 	case IRR_PEAK_ATTRIBUTED:
-		sb_printf(b, "<path d=\"M%s %sL%s %sL%s %sL%s %sZ\" fill=\"#ffffff\" stroke=\"%s\" stroke-width=\"1.6\"/>\n",
+		irr_buf__printf(b, "<path d=\"M%s %sL%s %sL%s %sL%s %sZ\" fill=\"#ffffff\" stroke=\"%s\" stroke-width=\"1.6\"/>\n",
 		          num(x), num(y - 4.6), num(x + 4.6), num(y), num(x), num(y + 4.6), num(x - 4.6), num(y),
 		          C_ATTRIBUTED);
 		break;
 	default: {
 		/* The apex of the triangle points along -dir (towards the band). */
 		double tip = y - dir * 5.0, base = y + dir * 4.0;
-		sb_printf(b, "<path d=\"M%s %sL%s %sL%s %sZ\" fill=\"%s\" stroke=\"%s\" stroke-width=\"0.8\"/>\n",
+		irr_buf__printf(b, "<path d=\"M%s %sL%s %sL%s %sZ\" fill=\"%s\" stroke=\"%s\" stroke-width=\"0.8\"/>\n",
 		          num(x), num(tip), num(x + 5.2), num(base), num(x - 5.2), num(base),
 		          C_UNEXPLAINED, INK);
 		break;
@@ -387,9 +334,9 @@ static void put_marker(sbuf *b, irr_peak_status st, double x, double y, int dir)
 	}
 }
 
-static void put_swatch(sbuf *b, irr_band_status s, double x, double y, double w, double h)
+static void put_swatch(irr_buf *b, irr_band_status s, double x, double y, double w, double h)
 {
-	sb_printf(b, "<rect x=\"%s\" y=\"%s\" width=\"%s\" height=\"%s\" fill=\"%s\" stroke=\"%s\" stroke-width=\"1.2\"%s/>\n",
+	irr_buf__printf(b, "<rect x=\"%s\" y=\"%s\" width=\"%s\" height=\"%s\" fill=\"%s\" stroke=\"%s\" stroke-width=\"1.2\"%s/>\n",
 	          num(x), num(y), num(w), num(h), win_pattern(s), win_colour(s), win_dash(s));
 }
 
@@ -450,7 +397,7 @@ static int curve_clear(const curve_cols *cc, const box *bx)
 	return 1;
 }
 
-static void place_labels(sbuf *b, const layout *L, label_req *req, size_t nreq,
+static void place_labels(irr_buf *b, const layout *L, label_req *req, size_t nreq,
                          const box *fixed, size_t nfixed, const curve_cols *cc)
 {
 	box placed[MAX_LABELS + 1];
@@ -496,7 +443,7 @@ static void place_labels(sbuf *b, const layout *L, label_req *req, size_t nreq,
 					if (k > 0 || sidx > 0) {
 						double ly = dir < 0 ? bx.y1 : bx.y0;
 						double lx = fmin(fmax(req[r].ax, bx.x0 + 2), bx.x1 - 2);
-						sb_printf(b, "<line x1=\"%s\" y1=\"%s\" x2=\"%s\" y2=\"%s\" stroke=\"%s\" stroke-width=\"0.7\"/>\n",
+						irr_buf__printf(b, "<line x1=\"%s\" y1=\"%s\" x2=\"%s\" y2=\"%s\" stroke=\"%s\" stroke-width=\"0.7\"/>\n",
 						          num(req[r].ax), num(req[r].ay + dir * 6.0), num(lx), num(ly), INK_SOFT);
 					}
 					put_text(b, bx.x0 + 2.0, cy + fs * 0.36, fs, 0, 's', req[r].colour,
@@ -510,7 +457,7 @@ static void place_labels(sbuf *b, const layout *L, label_req *req, size_t nreq,
 
 /* ---- Drawing ---- */
 
-static void draw_header(sbuf *b, const layout *L, const plot *p)
+static void draw_header(irr_buf *b, const layout *L, const plot *p)
 {
 	double badge_w, x = 24.0;
 	char *t;
@@ -526,7 +473,7 @@ static void draw_header(sbuf *b, const layout *L, const plot *p)
 	case IRR_VERDICT_CONSISTENT_IMPURE: vfill = "#ffffff"; vtext = INK; dash = 0; break;
 	default: vfill = "#ffffff"; vtext = INK; dash = 1; break;
 	}
-	sb_printf(b, "<rect x=\"%s\" y=\"12\" width=\"%s\" height=\"46\" rx=\"6\" fill=\"%s\" stroke=\"%s\" stroke-width=\"2\"%s/>\n",
+	irr_buf__printf(b, "<rect x=\"%s\" y=\"12\" width=\"%s\" height=\"46\" rx=\"6\" fill=\"%s\" stroke=\"%s\" stroke-width=\"2\"%s/>\n",
 	          num(L->W - 24.0 - badge_w), num(badge_w), vfill, INK, dash ? " stroke-dasharray=\"5 3\"" : "");
 	put_text(b, L->W - 24.0 - badge_w / 2, 34.0, 17.0, 1, 'm', vtext, NULL, p->verdict);
 	put_text(b, L->W - 24.0 - badge_w / 2, 51.0, 12.0, 0, 'm', vtext, NULL, p->score);
@@ -543,7 +490,7 @@ static void draw_header(sbuf *b, const layout *L, const plot *p)
 
 /* Splits "3000-2500 cm-1: C-H and acid O-H stretches" into the range and
  * up to two lines of description, fitted to `width`. */
-static void draw_region_label(sbuf *b, double cx, double y, double width, const char *name)
+static void draw_region_label(irr_buf *b, double cx, double y, double width, const char *name)
 {
 	const char *colon = strchr(name, ':');
 	char head[48], rest[160], line1[160];
@@ -595,7 +542,7 @@ static void draw_region_label(sbuf *b, double cx, double y, double width, const 
 	}
 }
 
-static void draw_regions(sbuf *b, const layout *L, const plot *p)
+static void draw_regions(irr_buf *b, const layout *L, const plot *p)
 {
 	static const double edges[] = {1e9, 3000.0, 2500.0, 2000.0, 1500.0, 0.0};
 	for (int r = 0; r < 5; r++) {
@@ -606,14 +553,14 @@ static void draw_regions(sbuf *b, const layout *L, const plot *p)
 		x0 = px_x(L, p, hi);
 		x1 = px_x(L, p, lo);
 		/* Alternate faint tints so each region reads as one strip. */
-		sb_printf(b, "<rect x=\"%s\" y=\"%s\" width=\"%s\" height=\"%s\" fill=\"%s\"/>\n",
+		irr_buf__printf(b, "<rect x=\"%s\" y=\"%s\" width=\"%s\" height=\"%s\" fill=\"%s\"/>\n",
 		          num(x0), num(L->top), num(x1 - x0), num(L->bottom - L->top),
 		          r % 2 ? "#f3f5f8" : "#ffffff");
 		if (x1 - x0 > 24.0)
 			draw_region_label(b, 0.5 * (x0 + x1), L->regions_top + 10.0, x1 - x0 - 6.0,
 			                  irr_region_name(r));
 		if (r > 0 && edges[r] < p->xhi && edges[r] > p->xlo)
-			sb_printf(b, "<line x1=\"%s\" y1=\"%s\" x2=\"%s\" y2=\"%s\" stroke=\"%s\" stroke-width=\"1\" stroke-dasharray=\"6 4\"/>\n",
+			irr_buf__printf(b, "<line x1=\"%s\" y1=\"%s\" x2=\"%s\" y2=\"%s\" stroke=\"%s\" stroke-width=\"1\" stroke-dasharray=\"6 4\"/>\n",
 			          num(x0), num(L->regions_top), num(x0), num(L->bottom), INK_SOFT);
 	}
 }
@@ -624,7 +571,7 @@ static double nice_step(double span, int target)
 	return (f < 1.5 ? 1.0 : f < 3.5 ? 2.0 : f < 7.5 ? 5.0 : 10.0) * mag;
 }
 
-static void draw_axes(sbuf *b, const layout *L, const plot *p)
+static void draw_axes(irr_buf *b, const layout *L, const plot *p)
 {
 	double step, v;
 	char buf[32];
@@ -636,7 +583,7 @@ static void draw_axes(sbuf *b, const layout *L, const plot *p)
 	for (v = ceil(p->xlo / minor_step) * minor_step; v <= p->xhi + 1e-9; v += minor_step) {
 		double x = px_x(L, p, v);
 		int major = fabs(fmod(v, major_step)) < 1e-6;
-		sb_printf(b, "<line x1=\"%s\" y1=\"%s\" x2=\"%s\" y2=\"%s\" stroke=\"%s\" stroke-width=\"1\"/>\n",
+		irr_buf__printf(b, "<line x1=\"%s\" y1=\"%s\" x2=\"%s\" y2=\"%s\" stroke=\"%s\" stroke-width=\"1\"/>\n",
 		          num(x), num(L->bottom), num(x), num(L->bottom + (major ? 6.0 : 3.0)), INK);
 		if (major) {
 			double w;
@@ -654,29 +601,29 @@ static void draw_axes(sbuf *b, const layout *L, const plot *p)
 		double y = px_y(L, p, v);
 		int dec = step >= 1.0 ? 0 : step >= 0.1 ? 1 : 2;
 		irr_format_double(buf, sizeof buf, v, dec);
-		sb_printf(b, "<line x1=\"%s\" y1=\"%s\" x2=\"%s\" y2=\"%s\" stroke=\"%s\" stroke-width=\"0.8\"/>\n",
+		irr_buf__printf(b, "<line x1=\"%s\" y1=\"%s\" x2=\"%s\" y2=\"%s\" stroke=\"%s\" stroke-width=\"0.8\"/>\n",
 		          num(L->left), num(y), num(L->right), num(y), GRID);
-		sb_printf(b, "<line x1=\"%s\" y1=\"%s\" x2=\"%s\" y2=\"%s\" stroke=\"%s\" stroke-width=\"1\"/>\n",
+		irr_buf__printf(b, "<line x1=\"%s\" y1=\"%s\" x2=\"%s\" y2=\"%s\" stroke=\"%s\" stroke-width=\"1\"/>\n",
 		          num(L->left - 5.0), num(y), num(L->left), num(y), INK);
 		put_text(b, L->left - 8.0, y + 4.0, 11.0, 0, 'e', INK, NULL, buf);
 	}
 	{
 		const char *yl = p->sticks ? "relative intensity" : p->transmittance ? "transmittance (%)" : "absorbance";
 		double cy = 0.5 * (L->top + L->bottom);
-		sb_printf(b, "<text x=\"16\" y=\"%s\" font-size=\"12\" fill=\"%s\" text-anchor=\"middle\" transform=\"rotate(-90 16 %s)\">",
+		irr_buf__printf(b, "<text x=\"16\" y=\"%s\" font-size=\"12\" fill=\"%s\" text-anchor=\"middle\" transform=\"rotate(-90 16 %s)\">",
 		          num(cy), INK, num(cy));
 		sb_xml(b, yl);
-		sb_str(b, "</text>\n");
+		irr_buf__str(b, "</text>\n");
 	}
-	sb_printf(b, "<rect x=\"%s\" y=\"%s\" width=\"%s\" height=\"%s\" fill=\"none\" stroke=\"%s\" stroke-width=\"1.2\"/>\n",
+	irr_buf__printf(b, "<rect x=\"%s\" y=\"%s\" width=\"%s\" height=\"%s\" fill=\"none\" stroke=\"%s\" stroke-width=\"1.2\"/>\n",
 	          num(L->left), num(L->top), num(L->right - L->left), num(L->bottom - L->top), INK);
 }
 
 /* Windows: a faint full-height shade in the plot, and a bar in the lanes
  * under the axis, outlined with the status's dash. */
-static void draw_windows(sbuf *b, const layout *L, const plot *p)
+static void draw_windows(irr_buf *b, const layout *L, const plot *p)
 {
-	sb_str(b, "<g clip-path=\"url(#irr-clip-plot)\" opacity=\"0.75\">\n");
+	irr_buf__str(b, "<g clip-path=\"url(#irr-clip-plot)\" opacity=\"0.75\">\n");
 	for (size_t i = 0; i < p->nwin; i++) {
 		const pwin *w = &p->win[i];
 		double x0 = px_x(L, p, fmin(w->high, p->xhi)), x1 = px_x(L, p, fmax(w->low, p->xlo));
@@ -687,10 +634,10 @@ static void draw_windows(sbuf *b, const layout *L, const plot *p)
 		}
 		if (w->high < p->xlo || w->low > p->xhi)
 			continue;
-		sb_printf(b, "<rect x=\"%s\" y=\"%s\" width=\"%s\" height=\"%s\" fill=\"%s\"/>\n",
+		irr_buf__printf(b, "<rect x=\"%s\" y=\"%s\" width=\"%s\" height=\"%s\" fill=\"%s\"/>\n",
 		          num(x0), num(L->top), num(x1 - x0), num(L->bottom - L->top), win_pattern(w->status));
 	}
-	sb_str(b, "</g>\n");
+	irr_buf__str(b, "</g>\n");
 	if (p->nwin)
 		put_text(b, L->left - 8.0, L->lanes_top + 9.0, 10.0, 0, 'e', INK_SOFT, NULL, "expected");
 	for (size_t i = 0; i < p->nwin; i++) {
@@ -706,27 +653,27 @@ static void draw_windows(sbuf *b, const layout *L, const plot *p)
 			x0 = c - 1.5;
 			x1 = c + 1.5;
 		}
-		sb_printf(b, "<rect x=\"%s\" y=\"%s\" width=\"%s\" height=\"%s\" fill=\"%s\" stroke=\"%s\" stroke-width=\"1.1\"%s>"
+		irr_buf__printf(b, "<rect x=\"%s\" y=\"%s\" width=\"%s\" height=\"%s\" fill=\"%s\" stroke=\"%s\" stroke-width=\"1.1\"%s>"
 		             "<title>", num(x0), num(y), num(x1 - x0), num(L->lane_h - 3.0),
 		          win_pattern(w->status), win_colour(w->status), win_dash(w->status));
 		sb_xml(b, w->label);
-		sb_str(b, ": ");
-		sb_str(b, status_word_band(w->status));
-		sb_str(b, "</title></rect>\n");
+		irr_buf__str(b, ": ");
+		irr_buf__str(b, status_word_band(w->status));
+		irr_buf__str(b, "</title></rect>\n");
 	}
 }
 
-static void draw_spectrum(sbuf *b, const layout *L, const plot *p, curve_cols *cc)
+static void draw_spectrum(irr_buf *b, const layout *L, const plot *p, curve_cols *cc)
 {
 	int cols = (int)ceil(L->right - L->left) + 1;
 	if (p->sticks) {
 		double y0 = px_y(L, p, fmax(p->ylo, 0.0));
-		sb_printf(b, "<g stroke=\"%s\" stroke-width=\"1.4\">\n", INK);
+		irr_buf__printf(b, "<g stroke=\"%s\" stroke-width=\"1.4\">\n", INK);
 		for (size_t i = 0; i < p->npk; i++) {
 			double x = px_x(L, p, p->pk[i].pos), y1 = px_y(L, p, p->pk[i].height);
-			sb_printf(b, "<line x1=\"%s\" y1=\"%s\" x2=\"%s\" y2=\"%s\"/>\n", num(x), num(y0), num(x), num(y1));
+			irr_buf__printf(b, "<line x1=\"%s\" y1=\"%s\" x2=\"%s\" y2=\"%s\"/>\n", num(x), num(y0), num(x), num(y1));
 		}
-		sb_str(b, "</g>\n");
+		irr_buf__str(b, "</g>\n");
 		return;
 	}
 	if (!p->n)
@@ -748,7 +695,7 @@ static void draw_spectrum(sbuf *b, const layout *L, const plot *p, curve_cols *c
 	/* One polyline; points that fall in the same pixel column are reduced
 	 * to their first, lowest, highest and last, which draws the same line
 	 * with a few thousand points at most. */
-	sb_printf(b, "<polyline clip-path=\"url(#irr-clip-plot)\" fill=\"none\" stroke=\"%s\" stroke-width=\"1.3\" stroke-linejoin=\"round\" points=\"", INK);
+	irr_buf__printf(b, "<polyline clip-path=\"url(#irr-clip-plot)\" fill=\"none\" stroke=\"%s\" stroke-width=\"1.3\" stroke-linejoin=\"round\" points=\"", INK);
 	{
 		size_t i = p->n;
 		int count = 0;
@@ -781,7 +728,7 @@ static void draw_spectrum(sbuf *b, const layout *L, const plot *p, curve_cols *c
 					x = px_x(L, p, p->x[pts[k]]);
 					y = px_y(L, p, p->y[pts[k]]);
 					y = fmin(fmax(y, L->top - 2.0), L->bottom + 2.0);
-					sb_printf(b, "%s%s,%s", count++ ? " " : "", num(x), num(y));
+					irr_buf__printf(b, "%s%s,%s", count++ ? " " : "", num(x), num(y));
 					if (cc->n) {
 						int c = (int)floor(x) - cc->x0;
 						if (c >= 0 && c < cc->n) {
@@ -796,7 +743,7 @@ static void draw_spectrum(sbuf *b, const layout *L, const plot *p, curve_cols *c
 			i = j;
 		}
 	}
-	sb_str(b, "\"/>\n");
+	irr_buf__str(b, "\"/>\n");
 	/* Fill the columns between drawn points so the line is continuous for
 	 * the label test too (a steep segment spans the y range between). */
 	for (int c = 1; c < cc->n; c++) {
@@ -812,7 +759,7 @@ static void draw_spectrum(sbuf *b, const layout *L, const plot *p, curve_cols *c
 		double x0 = px_x(L, p, fmin(p->sat[2 * s + 1], p->xhi)), x1 = px_x(L, p, fmax(p->sat[2 * s], p->xlo));
 		if (x1 <= x0)
 			continue;
-		sb_printf(b, "<rect x=\"%s\" y=\"%s\" width=\"%s\" height=\"4\" fill=\"%s\"><title>saturated</title></rect>\n",
+		irr_buf__printf(b, "<rect x=\"%s\" y=\"%s\" width=\"%s\" height=\"4\" fill=\"%s\"><title>saturated</title></rect>\n",
 		          num(x0), num(L->top), num(fmax(x1 - x0, 1.0)), INK);
 	}
 }
@@ -846,7 +793,7 @@ static double apex_y(const plot *p, double pos, double fallback)
 	}
 }
 
-static void draw_peaks(sbuf *b, const layout *L, const plot *p, const curve_cols *cc)
+static void draw_peaks(irr_buf *b, const layout *L, const plot *p, const curve_cols *cc)
 {
 	label_req req[256];
 	box fixed[256 + 8];
@@ -904,7 +851,7 @@ static void draw_peaks(sbuf *b, const layout *L, const plot *p, const curve_cols
 	place_labels(b, L, req, nreq, fixed, nfixed, cc);
 }
 
-static void draw_legend(sbuf *b, const layout *L)
+static void draw_legend(irr_buf *b, const layout *L)
 {
 	static const irr_band_status ws[] = {IRR_BAND_FOUND, IRR_BAND_SATURATED, IRR_BAND_MISSING, IRR_BAND_UNOBSERVABLE};
 	static const irr_peak_status ps[] = {IRR_PEAK_EXPLAINED, IRR_PEAK_ATTRIBUTED, IRR_PEAK_UNEXPLAINED};
@@ -940,12 +887,12 @@ static void draw_legend(sbuf *b, const layout *L)
 		x += need;
 	}
 	if (x + 150.0 <= lim) {
-		sb_printf(b, "<line x1=\"%s\" y1=\"%s\" x2=\"%s\" y2=\"%s\" stroke=\"%s\" stroke-width=\"1.3\"/>\n",
+		irr_buf__printf(b, "<line x1=\"%s\" y1=\"%s\" x2=\"%s\" y2=\"%s\" stroke=\"%s\" stroke-width=\"1.3\"/>\n",
 		          num(x), num(y + 6.0), num(x + 22.0), num(y + 6.0), INK);
 		put_text(b, x + 28.0, y + 10.0, fs, 0, 's', INK, NULL, "measured");
 		x += 28.0 + text_width("measured", fs, 0) + 16.0;
 		if (x + 160.0 <= lim) {
-			sb_printf(b, "<rect x=\"%s\" y=\"%s\" width=\"22\" height=\"4\" fill=\"%s\"/>\n", num(x), num(y + 4.0), INK);
+			irr_buf__printf(b, "<rect x=\"%s\" y=\"%s\" width=\"22\" height=\"4\" fill=\"%s\"/>\n", num(x), num(y + 4.0), INK);
 			put_text(b, x + 28.0, y + 10.0, fs, 0, 's', INK, NULL, "saturated range");
 		}
 	}
@@ -1016,7 +963,7 @@ static int pack_lanes(const layout *L, plot *p)
 static int render(char **out, plot *p, int width, int height)
 {
 	layout L;
-	sbuf b = {0};
+	irr_buf b = {0};
 	curve_cols cc = {0, 0, NULL, NULL};
 	int lanes;
 
@@ -1041,16 +988,16 @@ static int render(char **out, plot *p, int width, int height)
 		return IRR_EINPUT;
 	}
 
-	sb_str(&b, "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n");
-	sb_printf(&b, "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"%d\" height=\"%d\" viewBox=\"0 0 %d %d\" "
+	irr_buf__str(&b, "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n");
+	irr_buf__printf(&b, "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"%d\" height=\"%d\" viewBox=\"0 0 %d %d\" "
 	              "font-family=\"" FONT_FAMILY "\">\n", width, height, width, height);
-	sb_str(&b, "<title>");
+	irr_buf__str(&b, "<title>");
 	sb_xml(&b, p->title);
-	sb_str(&b, ": ");
+	irr_buf__str(&b, ": ");
 	sb_xml(&b, p->verdict);
-	sb_str(&b, "</title>\n");
+	irr_buf__str(&b, "</title>\n");
 	put_defs(&b, &L);
-	sb_printf(&b, "<rect width=\"%d\" height=\"%d\" fill=\"#ffffff\"/>\n", width, height);
+	irr_buf__printf(&b, "<rect width=\"%d\" height=\"%d\" fill=\"#ffffff\"/>\n", width, height);
 	draw_header(&b, &L, p);
 	draw_regions(&b, &L, p);
 	draw_windows(&b, &L, p);
@@ -1064,7 +1011,7 @@ static int render(char **out, plot *p, int width, int height)
 			put_text(&b, 24.0, L.footer_y, 10.0, 0, 's', INK_SOFT, NULL, f);
 		free(f);
 	}
-	sb_str(&b, "</svg>\n");
+	irr_buf__str(&b, "</svg>\n");
 	free(cc.top);
 	free(cc.bot);
 	if (b.oom) {

@@ -4,6 +4,7 @@
  * the other substances, and the cautions. Long lines wrap with a hanging
  * indent; nothing passes column 80. */
 #include "irrecon/report.h"
+#include "buf.h"
 
 #include <stdarg.h>
 #include <stdio.h>
@@ -12,58 +13,15 @@
 
 #define WIDTH 80
 
-typedef struct sbuf {
-	char *s;
-	size_t n, cap;
-	int failed;
-} sbuf;
-
-static void sb_add(sbuf *b, const char *t, size_t len)
-{
-	if (b->failed)
-		return;
-	if (b->n + len + 1 > b->cap) {
-		size_t nc = b->cap ? b->cap : 4096;
-		while (nc < b->n + len + 1)
-			nc *= 2;
-		char *ns = realloc(b->s, nc);
-		if (!ns) {
-			b->failed = 1;
-			return;
-		}
-		b->s = ns, b->cap = nc;
-	}
-	memcpy(b->s + b->n, t, len);
-	b->n += len;
-	b->s[b->n] = '\0';
-}
-
-static void sb_printf(sbuf *b, const char *fmt, ...)
-#if defined(__GNUC__)
-	__attribute__((format(printf, 2, 3)))
-#endif
-	;
-static void sb_printf(sbuf *b, const char *fmt, ...)
-{
-	char buf[2048];
-	va_list ap;
-	int k;
-	va_start(ap, fmt);
-	k = vsnprintf(buf, sizeof buf, fmt, ap);
-	va_end(ap);
-	if (k < 0)
-		return;
-	sb_add(b, buf, (size_t)k < sizeof buf ? (size_t)k : sizeof buf - 1);
-}
 
 /* Writes `prefix` then `text` word-wrapped to WIDTH, continuation lines
  * indented by `indent` spaces. Words longer than a line are cut. */
-static void sb_wrap(sbuf *b, const char *prefix, const char *text, size_t indent)
+static void sb_wrap(irr_buf *b, const char *prefix, const char *text, size_t indent)
 {
 	size_t col = strlen(prefix);
 	const char *p = text;
 	int first = 1;
-	sb_add(b, prefix, col);
+	irr_buf__add(b, prefix, col);
 	for (;;) {
 		size_t w;
 		while (*p == ' ')
@@ -72,29 +30,29 @@ static void sb_wrap(sbuf *b, const char *prefix, const char *text, size_t indent
 		if (!w)
 			break;
 		if (!first && col + 1 + w > WIDTH) {
-			sb_add(b, "\n", 1);
+			irr_buf__add(b, "\n", 1);
 			for (size_t i = 0; i < indent; i++)
-				sb_add(b, " ", 1);
+				irr_buf__add(b, " ", 1);
 			col = indent;
 		} else if (!first) {
-			sb_add(b, " ", 1);
+			irr_buf__add(b, " ", 1);
 			col++;
 		}
 		first = 0;
 		while (col + w > WIDTH) {
 			size_t part = WIDTH > col ? WIDTH - col : 1;
-			sb_add(b, p, part);
+			irr_buf__add(b, p, part);
 			p += part, w -= part;
-			sb_add(b, "\n", 1);
+			irr_buf__add(b, "\n", 1);
 			for (size_t i = 0; i < indent; i++)
-				sb_add(b, " ", 1);
+				irr_buf__add(b, " ", 1);
 			col = indent;
 		}
-		sb_add(b, p, w);
+		irr_buf__add(b, p, w);
 		col += w;
 		p += w;
 	}
-	sb_add(b, "\n", 1);
+	irr_buf__add(b, "\n", 1);
 }
 
 static const char *num(char *buf, size_t n, double v)
@@ -103,13 +61,13 @@ static const char *num(char *buf, size_t n, double v)
 	return buf;
 }
 
-static void rule(sbuf *b, const char *title)
+static void rule(irr_buf *b, const char *title)
 {
 	size_t n = strlen(title);
-	sb_printf(b, "\n-- %s ", title);
+	irr_buf__printf(b, "\n-- %s ", title);
 	for (size_t i = n + 4; i < WIDTH; i++)
-		sb_add(b, "-", 1);
-	sb_add(b, "\n", 1);
+		irr_buf__add(b, "-", 1);
+	irr_buf__add(b, "\n", 1);
 }
 
 /* "ketone, open-chain: C=O stretch" cut to fit `w` columns. */
@@ -118,7 +76,7 @@ static void band_name(char *out, size_t w, const irr_band *bd)
 	snprintf(out, w + 1, "%s: %s", bd->group_name, bd->label);
 }
 
-static void expected_section(sbuf *b, const irr_check *c, irr_band_status st,
+static void expected_section(irr_buf *b, const irr_check *c, irr_band_status st,
                              const char *title)
 {
 	size_t n = irr_check_expected_count(c), shown = 0;
@@ -129,7 +87,7 @@ static void expected_section(sbuf *b, const irr_check *c, irr_band_status st,
 			continue;
 		if (!shown++) {
 			rule(b, title);
-			sb_printf(b, "  %-40s %-11s %-8s %s\n", "band", "window", "class",
+			irr_buf__printf(b, "  %-40s %-11s %-8s %s\n", "band", "window", "class",
 			          st == IRR_BAND_FOUND ? "peak (shift)" : "note");
 		}
 		band_name(name, 40, e->band);
@@ -139,7 +97,7 @@ static void expected_section(sbuf *b, const irr_check *c, irr_band_status st,
 			const irr_observed *o = irr_check_observed(c, (size_t)e->peak);
 			char dev[16];
 			irr_format_double(dev, sizeof dev, e->deviation, 0);
-			sb_printf(b, "  %-40s %-11s %-8s %s (%s%s)%s\n", name, w3,
+			irr_buf__printf(b, "  %-40s %-11s %-8s %s (%s%s)%s\n", name, w3,
 			          irr_intensity_name(e->band->intensity),
 			          num(w4, sizeof w4, o->peak->position),
 			          e->deviation > 0.5 ? "+" : "", dev, e->shared ? " shared" : "");
@@ -150,14 +108,14 @@ static void expected_section(sbuf *b, const irr_check *c, irr_band_status st,
 			if (e->note)
 				sb_wrap(b, line, e->note, 65);
 			else
-				sb_printf(b, "%s\n", line);
+				irr_buf__printf(b, "%s\n", line);
 		}
 	}
 }
 
 int irr_report_text(char **out, const irr_check *c)
 {
-	sbuf b = {0};
+	irr_buf b = {0};
 	char w1[32], w2[32];
 	const irr_check_options *opt;
 	size_t n;
@@ -174,10 +132,10 @@ int irr_report_text(char **out, const irr_check *c)
 			up[i] = (char)(v[i] == '_' ? ' ' : (v[i] >= 'a' && v[i] <= 'z' ? v[i] - 32 : v[i]));
 		up[i] = '\0';
 		irr_format_double(w1, sizeof w1, irr_check_score(c), 2);
-		sb_printf(&b, "== %s == score %s", up, w1);
+		irr_buf__printf(&b, "== %s == score %s", up, w1);
 		if (opt->sample_id)
-			sb_printf(&b, " == sample %.40s", opt->sample_id);
-		sb_add(&b, "\n", 1);
+			irr_buf__printf(&b, " == sample %.40s", opt->sample_id);
+		irr_buf__add(&b, "\n", 1);
 	}
 	{
 		char pre[64];
@@ -279,10 +237,10 @@ int irr_report_text(char **out, const irr_check *c)
 	for (size_t i = 0; i < irr_check_caution_count(c); i++)
 		sb_wrap(&b, "  * ", irr_check_caution(c, i), 4);
 
-	if (b.failed) {
-		free(b.s);
+	if (b.oom) {
+		free(b.p);
 		return IRR_ENOMEM;
 	}
-	*out = b.s;
+	*out = b.p;
 	return IRR_OK;
 }

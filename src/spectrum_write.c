@@ -3,6 +3,7 @@
  * Exchange of Infrared Spectra in Computer Readable Form", Appl. Spectrosc.
  * 42 (1988) 151-162) or as a two-column CSV file. */
 #include "irrecon/spectrum_write.h"
+#include "buf.h"
 
 #include <math.h>
 #include <stdarg.h>
@@ -13,60 +14,6 @@
 /* JCAMP-DX 4.24 keeps data lines to 80 characters. */
 #define LINE_MAX_CHARS 80
 
-typedef struct wbuf {
-	char *p;
-	size_t len, cap;
-	int oom;
-} wbuf;
-
-static void wb_add(wbuf *b, const char *s, size_t n)
-{
-	if (b->oom)
-		return;
-	if (b->len + n + 1 > b->cap) {
-		size_t cap = b->cap ? b->cap : 4096;
-		char *np;
-		while (cap < b->len + n + 1)
-			cap *= 2;
-		np = realloc(b->p, cap);
-		if (!np) {
-			b->oom = 1;
-			return;
-		}
-		b->p = np;
-		b->cap = cap;
-	}
-	memcpy(b->p + b->len, s, n);
-	b->len += n;
-	b->p[b->len] = '\0';
-}
-
-static void wb_str(wbuf *b, const char *s)
-{
-	wb_add(b, s, strlen(s));
-}
-
-/* Only for strings and integers: numbers with a fraction go through
- * irr_format_double so the decimal point never depends on the locale. */
-static void wb_printf(wbuf *b, const char *fmt, ...)
-#if defined(__GNUC__)
-	__attribute__((format(printf, 2, 3)))
-#endif
-	;
-static void wb_printf(wbuf *b, const char *fmt, ...)
-{
-	char tmp[512];
-	va_list ap;
-	int n;
-	va_start(ap, fmt);
-	n = vsnprintf(tmp, sizeof tmp, fmt, ap);
-	va_end(ap);
-	if (n < 0)
-		return;
-	if ((size_t)n >= sizeof tmp)
-		n = sizeof tmp - 1;
-	wb_add(b, tmp, (size_t)n);
-}
 
 /* A decimal with at most `decimals` places, trailing zeros dropped. */
 static void fmt_trim(char *buf, size_t size, double v, int decimals)
@@ -86,11 +33,11 @@ static void fmt_trim(char *buf, size_t size, double v, int decimals)
 		strcpy(buf, "0");
 }
 
-static void wb_num(wbuf *b, double v, int decimals)
+static void wb_num(irr_buf *b, double v, int decimals)
 {
 	char tmp[64];
 	fmt_trim(tmp, sizeof tmp, v, decimals);
-	wb_str(b, tmp);
+	irr_buf__str(b, tmp);
 }
 
 void irr_write_options_init(irr_write_options *o)
@@ -202,7 +149,7 @@ static const char *jcamp_units(irr_yunits u)
 	}
 }
 
-static int finish(wbuf *b, char **out, size_t *len, const char *name, irr_error *err)
+static int finish(irr_buf *b, char **out, size_t *len, const char *name, irr_error *err)
 {
 	if (b->oom) {
 		free(b->p);
@@ -225,7 +172,7 @@ int irr_spectrum_write_csv(char **out, size_t *len, const irr_spectrum *s,
 	irr_write_options def;
 	double *x, *y;
 	irr_yunits units;
-	wbuf b = {0};
+	irr_buf b = {0};
 	size_t n;
 	int rc, dec;
 
@@ -240,12 +187,12 @@ int irr_spectrum_write_csv(char **out, size_t *len, const irr_spectrum *s,
 		return rc;
 	dec = clamp_decimals(o->y_decimals);
 	n = irr_spectrum_points(s);
-	wb_printf(&b, "wavenumber_cm-1,%s\n", csv_units(units));
+	irr_buf__printf(&b, "wavenumber_cm-1,%s\n", csv_units(units));
 	for (size_t i = 0; i < n; i++) {
 		wb_num(&b, x[i], 6);
-		wb_str(&b, ",");
+		irr_buf__str(&b, ",");
 		wb_num(&b, y[i], dec);
-		wb_str(&b, "\n");
+		irr_buf__str(&b, "\n");
 	}
 	free(x);
 	free(y);
@@ -294,14 +241,14 @@ static size_t enc_dup(char *buf, long count)
 	return n;
 }
 
-static void put_x(wbuf *b, double x)
+static void put_x(irr_buf *b, double x)
 {
 	/* XFACTOR is 1: the abscissa is written as a plain decimal. */
 	wb_num(b, x, 6);
 }
 
 /* (X++(Y..Y)) lines in AFFN: "X y y y ..." up to 80 characters. */
-static void write_affn(wbuf *b, const double *x, const long *yi, size_t n)
+static void write_affn(irr_buf *b, const double *x, const long *yi, size_t n)
 {
 	size_t i = 0;
 	while (i < n) {
@@ -318,8 +265,8 @@ static void write_affn(wbuf *b, const double *x, const long *yi, size_t n)
 			ll += tl;
 			i++;
 		} while (i < n);
-		wb_add(b, line, ll);
-		wb_str(b, "\n");
+		irr_buf__add(b, line, ll);
+		irr_buf__str(b, "\n");
 	}
 }
 
@@ -327,7 +274,7 @@ static void write_affn(wbuf *b, const double *x, const long *yi, size_t n)
  * starts with the last ordinate of the line before, as an absolute (SQZ)
  * value, and a last line holds only the final point, so a reader can verify
  * that no difference was lost (JCAMP-DX 4.24, section on DIF form). */
-static void write_difdup(wbuf *b, const double *x, const long *yi, size_t n)
+static void write_difdup(irr_buf *b, const double *x, const long *yi, size_t n)
 {
 	size_t i = 0; /* first point of the current line */
 	for (;;) {
@@ -358,16 +305,16 @@ static void write_difdup(wbuf *b, const double *x, const long *yi, size_t n)
 			if (k < run)
 				break;
 		}
-		wb_add(b, line, ll);
-		wb_str(b, "\n");
+		irr_buf__add(b, line, ll);
+		irr_buf__str(b, "\n");
 		if (j + 1 >= n) {
 			if (j > i) {
 				/* The closing Y-check line. */
 				fmt_trim(xs, sizeof xs, x[j], 6);
-				wb_str(b, xs);
+				irr_buf__str(b, xs);
 				enc_sqz(tok, yi[j]);
-				wb_str(b, tok);
-				wb_str(b, "\n");
+				irr_buf__str(b, tok);
+				irr_buf__str(b, "\n");
 			}
 			break;
 		}
@@ -377,7 +324,7 @@ static void write_difdup(wbuf *b, const double *x, const long *yi, size_t n)
 
 /* A header value on one line: no line breaks, no "##" that would start a
  * new label, at most `max` characters. */
-static void put_label(wbuf *b, const char *label, const char *value, size_t max)
+static void put_label(irr_buf *b, const char *label, const char *value, size_t max)
 {
 	char v[96];
 	size_t k = 0;
@@ -394,7 +341,7 @@ static void put_label(wbuf *b, const char *label, const char *value, size_t max)
 		v[k++] = c;
 	}
 	v[k] = '\0';
-	wb_printf(b, "##%s=%s\n", label, v);
+	irr_buf__printf(b, "##%s=%s\n", label, v);
 }
 
 int irr_spectrum_write_jcamp(char **out, size_t *len, const irr_spectrum *s,
@@ -404,7 +351,7 @@ int irr_spectrum_write_jcamp(char **out, size_t *len, const irr_spectrum *s,
 	double *x, *y, yfactor, maxy, miny, deltax;
 	long *yi = NULL;
 	irr_yunits units;
-	wbuf b = {0};
+	irr_buf b = {0};
 	size_t n;
 	int rc, dec, even = 1;
 	const char *name = irr_spectrum_name(s) ? irr_spectrum_name(s) : "";
@@ -457,53 +404,53 @@ int irr_spectrum_write_jcamp(char **out, size_t *len, const irr_spectrum *s,
 	      : irr_spectrum_title(s) && irr_spectrum_title(s)[0] ? irr_spectrum_title(s)
 	      : name;
 	put_label(&b, "TITLE", title && title[0] ? title : "untitled", 70);
-	wb_str(&b, "##JCAMP-DX=4.24\n");
-	wb_str(&b, "##DATA TYPE=INFRARED SPECTRUM\n");
+	irr_buf__str(&b, "##JCAMP-DX=4.24\n");
+	irr_buf__str(&b, "##DATA TYPE=INFRARED SPECTRUM\n");
 	put_label(&b, "ORIGIN", o->origin ? o->origin : "irrecon", 70);
 	put_label(&b, "OWNER", o->owner ? o->owner : "unknown", 70);
-	wb_str(&b, "##XUNITS=1/CM\n");
-	wb_printf(&b, "##YUNITS=%s\n", jcamp_units(units));
-	wb_str(&b, "##XFACTOR=1\n");
-	wb_str(&b, "##YFACTOR=");
+	irr_buf__str(&b, "##XUNITS=1/CM\n");
+	irr_buf__printf(&b, "##YUNITS=%s\n", jcamp_units(units));
+	irr_buf__str(&b, "##XFACTOR=1\n");
+	irr_buf__str(&b, "##YFACTOR=");
 	wb_num(&b, yfactor, dec);
-	wb_str(&b, "\n##FIRSTX=");
+	irr_buf__str(&b, "\n##FIRSTX=");
 	wb_num(&b, x[0], 6);
-	wb_str(&b, "\n##LASTX=");
+	irr_buf__str(&b, "\n##LASTX=");
 	wb_num(&b, x[n - 1], 6);
 	if (even) {
-		wb_str(&b, "\n##DELTAX=");
+		irr_buf__str(&b, "\n##DELTAX=");
 		wb_num(&b, deltax, 6);
 	}
-	wb_str(&b, "\n##MAXY=");
+	irr_buf__str(&b, "\n##MAXY=");
 	wb_num(&b, (double)lround(maxy * pow(10.0, dec)) * yfactor, dec);
-	wb_str(&b, "\n##MINY=");
+	irr_buf__str(&b, "\n##MINY=");
 	wb_num(&b, (double)lround(miny * pow(10.0, dec)) * yfactor, dec);
-	wb_printf(&b, "\n##NPOINTS=%zu\n", n);
-	wb_str(&b, "##FIRSTY=");
+	irr_buf__printf(&b, "\n##NPOINTS=%zu\n", n);
+	irr_buf__str(&b, "##FIRSTY=");
 	wb_num(&b, (double)yi[0] * yfactor, dec);
-	wb_str(&b, "\n");
+	irr_buf__str(&b, "\n");
 	if (o->comment && o->comment[0]) {
 		char c[LINE_MAX_CHARS - 2];
 		size_t k = 0;
 		for (const char *p = o->comment; *p && k < sizeof c - 1; p++)
 			c[k++] = (*p == '\n' || *p == '\r' || (unsigned char)*p < 0x20) ? ' ' : *p;
 		c[k] = '\0';
-		wb_printf(&b, "$$ %s\n", c);
+		irr_buf__printf(&b, "$$ %s\n", c);
 	}
 	if (even) {
-		wb_str(&b, "##XYDATA=(X++(Y..Y))\n");
+		irr_buf__str(&b, "##XYDATA=(X++(Y..Y))\n");
 		if (o->form == IRR_JCAMP_AFFN)
 			write_affn(&b, x, yi, n);
 		else
 			write_difdup(&b, x, yi, n);
 	} else {
-		wb_str(&b, "##XYPOINTS=(XY..XY)\n");
+		irr_buf__str(&b, "##XYPOINTS=(XY..XY)\n");
 		for (size_t i = 0; i < n; i++) {
 			put_x(&b, x[i]);
-			wb_printf(&b, ", %ld\n", yi[i]);
+			irr_buf__printf(&b, ", %ld\n", yi[i]);
 		}
 	}
-	wb_str(&b, "##END=\n");
+	irr_buf__str(&b, "##END=\n");
 	free(x);
 	free(y);
 	free(yi);
