@@ -588,7 +588,7 @@ static inline void next_y_token(const char **pp, const char *e, token *t)
 		goto general;
 	t->at = *pp;
 	t->kind = kc == K_DUP ? TK_DUP : (kc == K_DIFP || kc == K_DIFN) ? TK_DIF : TK_ABS;
-	t->v = (kc == K_SQZN || kc == K_DIFN) ? -(double)m : (double)m;
+	t->v = (kc == K_SQZN || kc == K_DIFN) ? -(double)(int64_t)m : (double)(int64_t)m;
 	*pp = p;
 	return;
 general:
@@ -788,6 +788,66 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 			d->last_line_index = line_start_n;
 		}
 		for (;;) {
+			/* Past the first ordinate of a compressed line: SQZ, DIF
+			 * and DUP tokens with plain digits, decoded and stored here
+			 * as long as they fit what is allocated; anything else
+			 * (separators, AFFN, errors, a full array) is left to the
+			 * general path below, from the token it stopped at. */
+			if (!first_y && !affn_line) {
+				/* Locals: the stores through raw cannot then be taken
+				 * to change the count or the capacity. */
+				double *raw = d->raw, lst = last, ldif = last_dif;
+				size_t dn = d->n, cap = d->cap;
+				int pk = prev_kind;
+				while (q < de) {
+					const char *t0 = q, *st;
+					unsigned k = asdf_class[(unsigned char)*q], kc = k & 0xF0;
+					uint64_t m = k & 0x0F;
+					if (kc < K_SQZP || kc > K_DUP)
+						break;
+					st = ++q;
+					while ((unsigned)(*q - '0') <= 9) {
+						m = m * 10 + (uint64_t)(*q - '0');
+						q++;
+					}
+					if (q - st > 16) {
+						q = t0;
+						break;
+					}
+					if (kc == K_DUP) {
+						if (m < 1 || m - 1 > cap - dn) {
+							q = t0;
+							break;
+						}
+						for (uint64_t c = 1; c < m; c++) {
+							if (pk == TK_DIF)
+								lst += ldif;
+							raw[dn++] = lst;
+						}
+						continue;
+					}
+					if (dn == cap) {
+						q = t0;
+						break;
+					}
+					/* m < 10^17: exact through int64_t, whose conversion
+					 * is one instruction. */
+					double v = (double)(int64_t)m;
+					if (kc == K_DIFP || kc == K_DIFN) {
+						ldif = kc == K_DIFN ? -v : v;
+						lst += ldif;
+						pk = TK_DIF;
+					} else {
+						lst = kc == K_SQZN ? -v : v;
+						pk = TK_ABS;
+					}
+					raw[dn++] = lst;
+				}
+				d->n = dn;
+				last = lst;
+				last_dif = ldif;
+				prev_kind = pk;
+			}
 			next_y_token(&q, de, &t);
 			if (t.kind == TK_END)
 				break;
@@ -1365,21 +1425,21 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 				                   "1 data point: a spectrum needs at least 2");
 				goto done;
 			}
-			for (size_t i = 0; i < n; i++)
-				s->x[i] = x0 + (double)i * dx;
-			if (dx_from_lastx)
-				s->x[n - 1] = h.lastx.v;
 			if ((rc = check_y_headers(s, &h, &(decoded){.raw = s->y, .n = n}, yf, name, err)) < 0)
 				goto done;
 			{
 				/* An evenly spaced axis is monotonic by construction
 				 * and positive when both ends are; a sum of v * 0 is
-				 * NaN exactly when some v is not finite. */
-				double z = 0.0;
-				for (size_t i = 0; i < n; i++) {
+				 * NaN exactly when some v is not finite. The index
+				 * runs as a double too (exact below 2^53). */
+				double z = 0.0, di = 0.0;
+				for (size_t i = 0; i < n; i++, di += 1.0) {
+					s->x[i] = x0 + di * dx;
 					s->y[i] *= yf;
 					z += s->y[i] * 0.0;
 				}
+				if (dx_from_lastx)
+					s->x[n - 1] = h.lastx.v;
 				if (z != 0.0 || !isfinite(s->x[0]) || !isfinite(s->x[n - 1])) {
 					size_t i = 0;
 					while (i < n && isfinite(s->y[i]))
