@@ -5,6 +5,7 @@
 
 #include <stdio.h>
 #include "irrecon/common.h"
+#include "irrecon/spectrum.h"
 
 /* Exit statuses, like diff and grep: 0 good, 1 "not consistent", 2 error. */
 enum { CLI_OK = 0, CLI_NOT_CONSISTENT = 1, CLI_ERROR = 2 };
@@ -32,6 +33,69 @@ int cli_usage_error(const char *cmd, const char *fmt, ...)
  * "-" writes to stdout. Returns IRR_OK or fills err. */
 int cli_write_file_atomic(const char *path, const char *data, size_t len,
                           irr_error *err);
+
+/* ---- Option tables (opts.c) ---- */
+
+struct cJSON;
+
+/* One option of a command. One table per command (ended by a NULL name)
+ * drives its argv loop, its --help list and so the man page. */
+typedef struct cli_opt {
+	const char *name;  /* "--json" */
+	const char *arg;   /* value name for --help ("FILE"); NULL: a flag */
+	const char *help;  /* one line; '\n' continues under the first line */
+} cli_opt;
+
+/* The option named `name` in `opts`, or NULL. */
+const cli_opt *cli_opt_find(const cli_opt *opts, const char *name);
+/* Prints the table for --help: "  NAME ARG" padded to `width` columns, a
+ * blank, the help text. */
+void cli_opt_help(const cli_opt *opts, int width);
+/* 1 when opt is the option `name`. */
+int cli_opt_is(const cli_opt *opt, const char *name);
+
+/* Flags of cli_args. */
+enum {
+	CLI_ARGS_OPERANDS = 1,    /* words not starting with '-' (and "-") are operands */
+	CLI_ARGS_DASH_H = 2,      /* "-h" is "--help" */
+	CLI_ARGS_NEEDS_VALUE = 4, /* a missing value reads "X needs a value", else "X needs ARG" */
+	CLI_ARGS_DASHDASH = 8     /* "--" is reported as CLI_ARGS_DASHDASH_SEEN */
+};
+/* Returns of cli_opt_next (and CLI_ERROR). */
+enum { CLI_ARGS_END = 0, CLI_ARGS_NEXT = 1, CLI_ARGS_DASHDASH_SEEN = 3 };
+
+/* Walks argv[1..argc-1]; i is the next argument (start at 1). */
+typedef struct cli_args {
+	const char *cmd;             /* command name, for messages */
+	const cli_opt *opts;
+	int argc;
+	char **argv;
+	int i;
+	unsigned flags;
+	const char *const *aliases;  /* NULL, or pairs {"--other", "--name", ..., NULL} */
+} cli_args;
+
+/* The next argument: CLI_ARGS_NEXT with *opt and its *value (NULL for a
+ * flag), or with *opt NULL and the operand in *value; CLI_ARGS_END after
+ * the last; CLI_ERROR after printing "unknown option" or "needs a value". */
+int cli_opt_next(cli_args *p, const cli_opt **opt, const char **value);
+
+/* A whole number >= 1 for --block, --max-bytes, --max-points: 0 or -1. */
+int cli_parse_count(const char *opt, const char *v, size_t *out);
+/* --block (at most 100000), --max-bytes, --max-points into ro, with
+ * cli_parse_count; CLI_OK or the usage error "X needs a whole number >= 1". */
+int cli_count_option(const char *cmd, const char *opt, const char *v, irr_read_options *ro);
+/* A number (locale-independent); CLI_OK or the usage error "X needs a number". */
+int cli_number_option(const char *cmd, const char *opt, const char *v, double *out);
+/* The reading options of the single-file commands (peaks, axis):
+ * --decimal-comma, --micrometres, --y-units, --block (at most 1e6),
+ * --max-bytes, --max-points. CLI_OK, CLI_ERROR after a usage error, or -1
+ * when `opt` is none of them. */
+int cli_read_option(const char *cmd, const char *opt, const char *v, irr_read_options *ro);
+
+/* Prints `root` as JSON plus a final newline and deletes it (root may be
+ * NULL). Caller frees the text; NULL when out of memory. */
+char *cli_json_text(struct cJSON *root);
 
 /* Subcommands, one file each (cmd_<name>.c); listed in main.c. */
 int cmd_predict(int argc, char **argv);

@@ -76,18 +76,6 @@ static void help(void)
 
 /* ---- Shared with rank ---- */
 
-int cli_parse_count(const char *opt, const char *v, size_t *out)
-{
-	double num;
-	char *end;
-	(void)opt;
-	if (irr_parse_double(v, &end, &num) != IRR_OK || *end || !(num >= 1 && num <= 1e15) ||
-	    num != (double)(long long)num)
-		return -1;
-	*out = (size_t)num;
-	return 0;
-}
-
 int cli_read_structure_file(char **out, long *line_no, const char *path, irr_error *err)
 {
 	FILE *f = fopen(path, "rb");

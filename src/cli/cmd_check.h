@@ -19,9 +19,6 @@ int cli_load_tables(irr_tables **out, const char *dir, char **extra, size_t next
  * IRR_ELIMIT error. */
 int cli_sha256_file(const char *path, size_t max_bytes, char hex[65], irr_error *err);
 
-/* A whole number >= 1 for --block, --max-bytes, --max-points: 0 or -1. */
-int cli_parse_count(const char *opt, const char *v, size_t *out);
-
 /* Reads the spectrum (with read options `ro`, may be NULL) or peak list and
  * hands it to the check, with the file name and its SHA-256 in the options.
  * Exactly one of spectrum/peaks. */
