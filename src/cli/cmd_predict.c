@@ -18,23 +18,16 @@
 
 #define MAX_EXTRA_TABLES 32
 
-typedef struct opt_def {
-	const char *name;
-	const char *arg;   /* NULL: a flag */
-	const char *help;
-} opt_def;
-
-/* One table drives parsing and --help. */
-static const opt_def opts[] = {
+static const cli_opt opts[] = {
 	{"--structure-file", "FILE", "read the SMILES from FILE (first line that is not\n"
-	                             "                         blank or '#'; text after the SMILES is its name)"},
+	                             "blank or '#'; text after the SMILES is its name)"},
 	{"--json", NULL, "print JSON (schema irrecon.predict/1) instead of the table"},
 	{"--output", "FILE", "write to FILE (replaced atomically) instead of stdout"},
 	{"--phase", "PHASE", "condensed (default), solution or gas"},
 	{"--sampling", "HOW", "atr (default) or transmission"},
 	{"--tables", "DIR", "group-table folder (default: $IRRECON_TABLES, else built in)"},
 	{"--add-table", "FILE", "also load FILE (repeatable); its groups add to or\n"
-	                        "                         replace groups of the same id"},
+	                        "replace groups of the same id"},
 	{"--help", NULL, "show this help"},
 	{NULL, NULL, NULL}
 };
@@ -46,11 +39,7 @@ static void help(void)
 	       "Lists the infrared bands the structure should show, from the group-frequency\n"
 	       "tables, highest wavenumber first, grouped by spectral region.\n\n"
 	       "Options:\n");
-	for (const opt_def *d = opts; d->name; d++) {
-		char lhs[40];
-		snprintf(lhs, sizeof lhs, "%s%s%s", d->name, d->arg ? " " : "", d->arg ? d->arg : "");
-		printf("  %-22s %s\n", lhs, d->help);
-	}
+	cli_opt_help(opts, 22);
 	printf("\nTable columns: window and typical position (cm-1); intensity class\n"
 	       "(s strong, m medium, w weak, v variable); shape; diagnostic weight 0-1 (how\n"
 	       "much a missing band counts against the structure); band, with its group and\n"
@@ -58,14 +47,6 @@ static void help(void)
 	       "Windows are handbook ranges, not measurements: a verdict built on them is\n"
 	       "evidence, never proof of identity or purity.\n\n"
 	       "Exit status: 0 success, 2 error.\n");
-}
-
-static const opt_def *find_opt(const char *a)
-{
-	for (const opt_def *d = opts; d->name; d++)
-		if (!strcmp(a, d->name))
-			return d;
-	return NULL;
 }
 
 /* Reads the first SMILES of a structure file: the first line that is not
@@ -357,45 +338,41 @@ int cmd_predict(int argc, char **argv)
 
 	irr_error_clear(&err);
 	irr_predict_options_init(&po);
-	for (int i = 1; i < argc; i++) {
-		const char *a = argv[i];
-		const opt_def *d;
-		if (a[0] != '-' || !a[1]) {
+	cli_args args = {"predict", opts, argc, argv, 1, CLI_ARGS_OPERANDS | CLI_ARGS_DASHDASH, NULL};
+	const cli_opt *d;
+	const char *v;
+	int next;
+	while ((next = cli_opt_next(&args, &d, &v)) != CLI_ARGS_END) {
+		if (next == CLI_ERROR)
+			return CLI_ERROR;
+		if (next == CLI_ARGS_DASHDASH_SEEN) {
+			if (args.i < argc && !smiles_arg)
+				smiles_arg = argv[args.i++];
+		} else if (!d) {
 			if (smiles_arg)
 				return cli_usage_error("predict", "give one SMILES (quote it for the shell)");
-			smiles_arg = a;
-			continue;
-		}
-		if (!strcmp(a, "--")) {
-			if (i + 1 < argc && !smiles_arg)
-				smiles_arg = argv[++i];
-			continue;
-		}
-		if (!(d = find_opt(a)))
-			return cli_usage_error("predict", "unknown option '%s'", a);
-		if (d->arg && i + 1 >= argc)
-			return cli_usage_error("predict", "%s needs %s", a, d->arg);
-		if (!strcmp(a, "--help")) {
+			smiles_arg = v;
+		} else if (cli_opt_is(d, "--help")) {
 			help();
 			return CLI_OK;
-		} else if (!strcmp(a, "--json")) {
+		} else if (cli_opt_is(d, "--json")) {
 			json = 1;
-		} else if (!strcmp(a, "--structure-file")) {
-			structure_file = argv[++i];
-		} else if (!strcmp(a, "--output")) {
-			output = argv[++i];
-		} else if (!strcmp(a, "--phase")) {
-			if (irr_phase_parse(argv[++i], &po.phase) != IRR_OK)
-				return cli_usage_error("predict", "--phase is condensed, solution or gas, not '%s'", argv[i]);
-		} else if (!strcmp(a, "--sampling")) {
-			if (irr_sampling_parse(argv[++i], &po.sampling) != IRR_OK)
-				return cli_usage_error("predict", "--sampling is atr or transmission, not '%s'", argv[i]);
-		} else if (!strcmp(a, "--tables")) {
-			tables_dir = argv[++i];
-		} else if (!strcmp(a, "--add-table")) {
+		} else if (cli_opt_is(d, "--structure-file")) {
+			structure_file = v;
+		} else if (cli_opt_is(d, "--output")) {
+			output = v;
+		} else if (cli_opt_is(d, "--phase")) {
+			if (irr_phase_parse(v, &po.phase) != IRR_OK)
+				return cli_usage_error("predict", "--phase is condensed, solution or gas, not '%s'", v);
+		} else if (cli_opt_is(d, "--sampling")) {
+			if (irr_sampling_parse(v, &po.sampling) != IRR_OK)
+				return cli_usage_error("predict", "--sampling is atr or transmission, not '%s'", v);
+		} else if (cli_opt_is(d, "--tables")) {
+			tables_dir = v;
+		} else if (cli_opt_is(d, "--add-table")) {
 			if (n_extra == MAX_EXTRA_TABLES)
 				return cli_usage_error("predict", "at most %d --add-table files", MAX_EXTRA_TABLES);
-			extra[n_extra++] = argv[++i];
+			extra[n_extra++] = v;
 		}
 	}
 	if (!smiles_arg == !structure_file)
@@ -419,30 +396,22 @@ int cmd_predict(int argc, char **argv)
 		goto fail;
 
 	/* Everything goes to memory first: an error never leaves half a report. */
-	{
+	if (json) {
+		text = cli_json_text(json_output(m, file_name, inv, p, t, &po));
+		text_len = text ? strlen(text) : 0;
+	} else {
 		FILE *mem = open_memstream(&text, &text_len);
-		if (!mem) {
-			irr_error_set(&err, IRR_ENOMEM, "", 0, "out of memory");
-			goto fail;
-		}
-		if (json) {
-			cJSON *root = json_output(m, file_name, inv, p, t, &po);
-			char *s = root ? cJSON_Print(root) : NULL;
-			cJSON_Delete(root);
-			if (!s) {
-				fclose(mem);
-				irr_error_set(&err, IRR_ENOMEM, "", 0, "out of memory");
-				goto fail;
-			}
-			fprintf(mem, "%s\n", s);
-			cJSON_free(s);
-		} else {
+		if (mem) {
 			print_text(mem, m, file_name, inv, p, t, &po);
+			if (fclose(mem) != 0) {
+				free(text);
+				text = NULL;
+			}
 		}
-		if (fclose(mem) != 0) {
-			irr_error_set(&err, IRR_ENOMEM, "", 0, "out of memory");
-			goto fail;
-		}
+	}
+	if (!text) {
+		irr_error_set(&err, IRR_ENOMEM, "", 0, "out of memory");
+		goto fail;
 	}
 	if (cli_write_file_atomic(output, text, text_len, &err))
 		goto fail;
