@@ -15,6 +15,10 @@
 #ifdef __SSE2__
 #include <emmintrin.h>
 #endif
+#if defined(__x86_64__) && defined(__GNUC__)
+#include <immintrin.h>
+#define SG_AVX 1
+#endif
 
 #define SG_MAX_ORDER 8
 
@@ -222,6 +226,35 @@ int irr_sg__apply(const double *y, size_t n, int half, int order, int deriv,
 	return IRR_OK;
 }
 
+#ifdef SG_AVX
+/* The centre loop of irr_sg__smooth_d2 four outputs at a time (AVX; no
+ * fused multiply-add, so each lane does the scalar operations in their
+ * order). Returns the first index it did not do. */
+__attribute__((target("avx")))
+static size_t centre_avx(const double *y, size_t n, size_t h, const double *c0,
+                         const double *c2, double *s0, double *s2)
+{
+	size_t i0 = h;
+	__m256d k0[51], k2[51];
+	for (size_t k = 0; k <= h; k++) {
+		k0[k] = _mm256_set1_pd(c0[h + k]);
+		k2[k] = _mm256_set1_pd(c2[h + k]);
+	}
+	for (; i0 + 3 + h < n; i0 += 4) {
+		__m256d yi = _mm256_loadu_pd(y + i0);
+		__m256d a0 = _mm256_mul_pd(k0[0], yi), a2 = _mm256_mul_pd(k2[0], yi);
+		for (size_t k = 1; k <= h; k++) {
+			__m256d f = _mm256_add_pd(_mm256_loadu_pd(y + i0 - k), _mm256_loadu_pd(y + i0 + k));
+			a0 = _mm256_add_pd(a0, _mm256_mul_pd(k0[k], f));
+			a2 = _mm256_add_pd(a2, _mm256_mul_pd(k2[k], f));
+		}
+		_mm256_storeu_pd(s0 + i0, a0);
+		_mm256_storeu_pd(s2 + i0, a2);
+	}
+	return i0;
+}
+#endif
+
 int irr_sg__smooth_d2(const double *y, size_t n, int half, int order, double *s0,
                       double *s2)
 {
@@ -237,10 +270,16 @@ int irr_sg__smooth_d2(const double *y, size_t n, int half, int order, double *s0
 	fit_coefficients(&F, 2, 0, c2);
 	h = (size_t)half;
 	/* Both centre sets are symmetric (even derivatives): fold the window
-	 * once, y[i-k] + y[i+k], and use it for both outputs. Two neighbouring
-	 * outputs at a time in SSE2 lanes, each with the scalar loop's own
-	 * operations in its order, so the sums are the same to the bit. */
+	 * once, y[i-k] + y[i+k], and use it for both outputs. Four (AVX, where
+	 * the processor has it) or two (SSE2) neighbouring outputs at a time,
+	 * each lane with the scalar loop's own operations in its order, so
+	 * the sums are the same to the bit. */
 	size_t i0 = h;
+#ifdef SG_AVX
+	__builtin_cpu_init();
+	if (__builtin_cpu_supports("avx"))
+		i0 = centre_avx(y, n, h, c0, c2, s0, s2);
+#endif
 #ifdef __SSE2__
 	{
 		__m128d k0[51], k2[51];
