@@ -1,7 +1,6 @@
 /* cmd_peaks.c: `irrecon peaks FILE`: reads a spectrum (or a peak list),
  * picks the bands and prints them as an 80-column table or as JSON
  * ("irrecon.peaks/1"). */
-#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -13,14 +12,7 @@
 #include "irrecon/peaks.h"
 #include "irrecon/spectrum.h"
 
-typedef struct opt_def {
-	const char *name;
-	const char *arg;   /* NULL: a flag */
-	const char *help;
-} opt_def;
-
-/* One table drives parsing and --help. */
-static const opt_def opts[] = {
+static const cli_opt opts[] = {
 	{"--json", NULL, "print JSON (schema irrecon.peaks/1) instead of the table"},
 	{"--output", "FILE", "write to FILE (replaced atomically) instead of stdout"},
 	{"--block", "N", "compound JCAMP-DX: block N (default: the infrared one)"},
@@ -30,7 +22,7 @@ static const opt_def opts[] = {
 	{"--max-bytes", "N", "refuse files larger than N bytes (default 256 MiB)"},
 	{"--max-points", "N", "refuse spectra of more than N points (default 4,000,000)"},
 	{"--y-units", "UNITS", "CSV without a units header: absorbance, transmittance,\n"
-	                       "                       percent_transmittance, reflectance, kubelka_munk"},
+	                       "percent_transmittance, reflectance, kubelka_munk"},
 	{"--micrometres", NULL, "CSV: X is wavelength in micrometres"},
 	{"--smooth", "CM", "Savitzky-Golay window, cm-1 (default: auto, 7 cm-1)"},
 	{"--min-snr", "X", "minimum prominence in noise units (default 5)"},
@@ -52,32 +44,12 @@ static void help(void)
 	       "Picks the bands of an infrared spectrum (JCAMP-DX or two-column CSV/TSV),\n"
 	       "after converting it to absorbance on an ascending wavenumber axis.\n\n"
 	       "Options:\n");
-	for (const opt_def *d = opts; d->name; d++) {
-		char lhs[40];
-		snprintf(lhs, sizeof lhs, "%s%s%s", d->name, d->arg ? " " : "", d->arg ? d->arg : "");
-		printf("  %-20s %s\n", lhs, d->help);
-	}
+	cli_opt_help(opts, 20);
 	printf("\nTable columns: band position (cm-1), height and area above the baseline\n"
 	       "(absorbance; absorbance x cm-1), full width at half height (cm-1), class\n"
 	       "relative to the strongest band, flags. A saturated band is certainly there\n"
 	       "and strong, but its position is only the centre of the clipped range.\n\n"
 	       "Exit status: 0 success, 2 error.\n");
-}
-
-static const opt_def *find_opt(const char *a)
-{
-	for (const opt_def *d = opts; d->name; d++)
-		if (!strcmp(a, d->name))
-			return d;
-	return NULL;
-}
-
-static int parse_num(const char *opt, const char *s, double *v)
-{
-	char *end;
-	if (irr_parse_double(s, &end, v) != IRR_OK || *end)
-		return cli_usage_error("peaks", "%s needs a number, not '%s'", opt, s);
-	return 0;
 }
 
 static const char *fmt(char *buf, size_t size, double v, int dec)
@@ -97,7 +69,6 @@ static char *render_json(const irr_spectrum *s, const irr_peaklist *pl, const ch
                          const irr_peak_options *po)
 {
 	cJSON *root = cJSON_CreateObject(), *sp, *arr, *pk;
-	char *txt;
 	double lo, hi;
 	if (!root)
 		return NULL;
@@ -167,9 +138,7 @@ static char *render_json(const irr_spectrum *s, const irr_peaklist *pl, const ch
 		cJSON_AddBoolToObject(pk, "saturated", p->saturated);
 		cJSON_AddItemToArray(arr, pk);
 	}
-	txt = cJSON_Print(root);
-	cJSON_Delete(root);
-	return txt;
+	return cli_json_text(root);
 }
 
 static char *render_table(const irr_spectrum *s, const irr_peaklist *pl, const char *path)
@@ -264,70 +233,43 @@ int cmd_peaks(int argc, char **argv)
 	irr_read_options_init(&ro);
 	irr_peak_options_init(&po);
 	irr_error_clear(&err);
-	for (int i = 1; i < argc; i++) {
-		const char *a = argv[i];
-		const opt_def *d;
-		const char *v = NULL;
+	cli_args args = {"peaks", opts, argc, argv, 1,
+	                 CLI_ARGS_OPERANDS | CLI_ARGS_DASH_H | CLI_ARGS_NEEDS_VALUE, NULL};
+	const cli_opt *d;
+	const char *v;
+	int next;
+	while ((next = cli_opt_next(&args, &d, &v)) != CLI_ARGS_END) {
+		const char *a = d ? d->name : NULL;
 		double num = 0.0;
-		if (a[0] != '-' || !strcmp(a, "-")) {
+		int r;
+		if (next == CLI_ERROR)
+			return CLI_ERROR;
+		if (!d) {
 			if (path)
-				return cli_usage_error("peaks", "one FILE only ('%s' and '%s')", path, a);
-			path = a;
-			continue;
-		}
-		if (!strcmp(a, "-h"))
-			a = "--help";
-		if (!(d = find_opt(a)))
-			return cli_usage_error("peaks", "unknown option '%s'", a);
-		if (d->arg) {
-			if (i + 1 >= argc)
-				return cli_usage_error("peaks", "%s needs a value", a);
-			v = argv[++i];
-		}
-		if (!strcmp(a, "--help")) {
+				return cli_usage_error("peaks", "one FILE only ('%s' and '%s')", path, v);
+			path = v;
+		} else if (!strcmp(a, "--help")) {
 			help();
 			return CLI_OK;
 		} else if (!strcmp(a, "--json")) {
 			json = 1;
 		} else if (!strcmp(a, "--output")) {
 			output = v;
-		} else if (!strcmp(a, "--block")) {
-			if (parse_num(a, v, &num) || num < 1 || num > 1e6 || num != (double)(int)num)
-				return cli_usage_error("peaks", "--block needs a whole number >= 1, not '%s'", v);
-			ro.block = (int)num;
 		} else if (!strcmp(a, "--list-blocks")) {
 			listb = 1;
 		} else if (!strcmp(a, "--peak-list")) {
 			peaklist = 1;
-		} else if (!strcmp(a, "--decimal-comma")) {
-			ro.decimal_comma = 1;
 		} else if (!strcmp(a, "--no-shoulders")) {
 			po.shoulders = 0;
 		} else if (!strcmp(a, "--no-baseline")) {
 			po.baseline = 0;
-		} else if (!strcmp(a, "--micrometres")) {
-			ro.x_micrometers = 1;
-		} else if (!strcmp(a, "--y-units")) {
-			static const irr_yunits all[] = {IRR_Y_TRANSMITTANCE, IRR_Y_PERCENT_T, IRR_Y_ABSORBANCE,
-			                                 IRR_Y_REFLECTANCE, IRR_Y_KUBELKA_MUNK, IRR_Y_ARBITRARY};
-			size_t k;
-			for (k = 0; k < sizeof all / sizeof all[0]; k++)
-				if (!strcmp(v, irr_yunits_name(all[k])))
-					break;
-			if (k == sizeof all / sizeof all[0])
-				return cli_usage_error("peaks", "unknown Y units '%s'", v);
-			ro.y_units = all[k];
-		} else {
-			if (parse_num(a, v, &num))
+		} else if ((r = cli_read_option("peaks", a, v, &ro)) >= 0) {
+			if (r != CLI_OK)
 				return CLI_ERROR;
-			if (!strcmp(a, "--max-bytes") || !strcmp(a, "--max-points")) {
-				if (!(num >= 1 && num <= 1e15) || num != floor(num))
-					return cli_usage_error("peaks", "%s needs a whole number >= 1, not '%s'", a, v);
-				if (!strcmp(a, "--max-bytes"))
-					ro.max_bytes = (size_t)num;
-				else
-					ro.max_points = (size_t)num;
-			} else if (!strcmp(a, "--smooth"))
+		} else {
+			if (cli_number_option("peaks", a, v, &num))
+				return CLI_ERROR;
+			if (!strcmp(a, "--smooth"))
 				po.smooth_cm = num;
 			else if (!strcmp(a, "--min-snr"))
 				po.min_snr = num;
@@ -368,18 +310,6 @@ int cmd_peaks(int argc, char **argv)
 		irr_error_set(&err, IRR_ENOMEM, path, 0, "out of memory while formatting");
 		rc = cli_fail(&err);
 		goto done;
-	}
-	if (json) {
-		size_t l = strlen(text);
-		char *t2 = realloc(text, l + 2);
-		if (!t2) {
-			irr_error_set(&err, IRR_ENOMEM, path, 0, "out of memory while formatting");
-			rc = cli_fail(&err);
-			goto done;
-		}
-		text = t2;
-		text[l] = '\n';
-		text[l + 1] = '\0';
 	}
 	if (cli_write_file_atomic(output, text, strlen(text), &err) != IRR_OK) {
 		rc = cli_fail(&err);
