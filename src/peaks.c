@@ -339,40 +339,46 @@ static void hull_subtract(const double *x, const double *y, const double *raw, s
  * higher than a maximum, if skipped, lies on a slope whose far end is
  * higher still, with nothing lower in between. lb and rb are written only
  * where they are defined that way: at the points not skipped, which
- * include every maximum. sval and smin are scratch of n. */
+ * include every maximum. tv, ti, sval and smin are scratch of n. */
 static void prominence_bases(const double *c, size_t n, double *lb, double *rb,
-                             double *sval, double *smin)
+                             double *tv, size_t *ti, double *sval, double *smin)
 {
-	size_t top = 0;
-	for (size_t i = 0; i < n; i++) {
-		double v = c[i], m = v;
-		if (i > 0 && i + 1 < n &&
-		    ((c[i - 1] < v && v < c[i + 1]) || (c[i - 1] > v && v > c[i + 1])))
-			continue;
+	size_t m = 0, top = 0;
+	/* The points that matter, once for both directions: tv their values,
+	 * ti their indices (n >= 2). */
+	tv[m] = c[0];
+	ti[m++] = 0;
+	for (size_t i = 1; i + 1 < n; i++) {
+		double a = c[i - 1], v = c[i], b = c[i + 1];
+		tv[m] = v;
+		ti[m] = i;
+		m += !((a < v && v < b) || (a > v && v > b));
+	}
+	tv[m] = c[n - 1];
+	ti[m++] = n - 1;
+	for (size_t j = 0; j < m; j++) {
+		double v = tv[j], mn = v;
 		while (top > 0 && sval[top - 1] <= v) {
-			if (smin[top - 1] < m)
-				m = smin[top - 1];
+			if (smin[top - 1] < mn)
+				mn = smin[top - 1];
 			top--;
 		}
-		lb[i] = m;
+		lb[ti[j]] = mn;
 		sval[top] = v;
-		smin[top] = m;
+		smin[top] = mn;
 		top++;
 	}
 	top = 0;
-	for (size_t ii = n; ii-- > 0;) {
-		double v = c[ii], m = v;
-		if (ii > 0 && ii + 1 < n &&
-		    ((c[ii - 1] < v && v < c[ii + 1]) || (c[ii - 1] > v && v > c[ii + 1])))
-			continue;
+	for (size_t j = m; j-- > 0;) {
+		double v = tv[j], mn = v;
 		while (top > 0 && sval[top - 1] < v) {
-			if (smin[top - 1] < m)
-				m = smin[top - 1];
+			if (smin[top - 1] < mn)
+				mn = smin[top - 1];
 			top--;
 		}
-		rb[ii] = m;
+		rb[ti[j]] = mn;
 		sval[top] = v;
-		smin[top] = m;
+		smin[top] = mn;
 		top++;
 	}
 }
@@ -445,7 +451,7 @@ static size_t first_at_or_above(const double *x, size_t n, double v)
 /* Working arrays, one allocation. */
 struct work {
 	const double *x, *y; /* working grid: the caller's, or resampled */
-	double *s, *base, *c, *r, *d2, *lb, *rb, *smin, *scratch;
+	double *s, *base, *c, *r, *d2, *lb, *rb, *smin, *scratch, *tv;
 	double *blk;         /* per block: raw, d2 levels, then their medians */
 	double *bsn, *bsd;   /* per block noise sd (raw) and of the 2nd derivative */
 	size_t *stk, *stk2;
@@ -644,7 +650,7 @@ checked:
 
 	/* One block for every working array. */
 	{
-		size_t nd = uniform ? 9 : 11, bytes;
+		size_t nd = uniform ? 10 : 12, bytes;
 		nb = (n + NOISE_BLOCK - 1) / NOISE_BLOCK;
 		bytes = (nd * n + 4 * nb) * sizeof(double) + 2 * n * sizeof(size_t) + 2 * n;
 		w.block = malloc(bytes);
@@ -663,6 +669,7 @@ checked:
 		w.rb = d; d += n;
 		w.smin = d; d += n;
 		w.scratch = d; d += n;
+		w.tv = d; d += n;
 		w.r = w.s;
 		w.blk = d; d += 2 * nb;
 		w.bsn = d; d += nb;
@@ -880,7 +887,7 @@ checked:
 	}
 
 	/* Maxima by prominence. */
-	prominence_bases(w.c, n, w.lb, w.rb, w.base, w.smin); /* base: free now */
+	prominence_bases(w.c, n, w.lb, w.rb, w.tv, w.stk2, w.base, w.smin); /* base: free now */
 	{
 		double hmax = 0.0;
 		memset(w.keep, 0, n);
@@ -1090,7 +1097,7 @@ checked:
 			size_t *sig = w.stk + nk, ns = 0; /* significant lobes, after kidx */
 			for (size_t i = 0; i < n; i++)
 				nd2[i] = -w.d2[i];
-			prominence_bases(nd2, n, w.lb, w.rb, w.base, w.smin);
+			prominence_bases(nd2, n, w.lb, w.rb, w.tv, w.stk2, w.base, w.smin);
 			for (size_t i = 1; i + 1 < n; i++) {
 				if (!(nd2[i] > nd2[i - 1] && nd2[i] >= nd2[i + 1] && nd2[i] > 0.0))
 					continue;
