@@ -3,7 +3,6 @@
  * the European / Japanese Pharmacopoeia) and says whether it can be
  * trusted. Exit 0 when every resolved band is within tolerance, 1 when one
  * is not (or none is resolved), 2 on error. */
-#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -15,13 +14,7 @@
 #include "irrecon/common.h"
 #include "irrecon/spectrum.h"
 
-typedef struct opt_def {
-	const char *name;
-	const char *arg;
-	const char *help;
-} opt_def;
-
-static const opt_def opts[] = {
+static const cli_opt opts[] = {
 	{"--json", NULL, "print JSON (schema irrecon.axis/1) instead of the table"},
 	{"--output", "FILE", "write to FILE (replaced atomically) instead of stdout"},
 	{"--block", "N", "compound JCAMP-DX file: use block N"},
@@ -48,11 +41,7 @@ static void help(void)
 	       "wavenumber, so an ATR spectrum can fail with a good axis. This check is\n"
 	       "evidence for the lab's own qualification procedure, not a replacement.\n\n"
 	       "Options:\n");
-	for (const opt_def *d = opts; d->name; d++) {
-		char lhs[40];
-		snprintf(lhs, sizeof lhs, "%s%s%s", d->name, d->arg ? " " : "", d->arg ? d->arg : "");
-		printf("  %-20s %s\n", lhs, d->help);
-	}
+	cli_opt_help(opts, 20);
 	printf("\nExit status: 0 axis within tolerance, 1 not (or no band resolved), 2 error.\n");
 }
 
@@ -110,8 +99,6 @@ static char *render_table(const irr_axis_report *r, const char *path)
 static char *render_json(const irr_axis_report *r, const irr_spectrum *s, const char *path)
 {
 	cJSON *root = cJSON_CreateObject(), *arr;
-	char *txt, *t2;
-	size_t l;
 	if (!root)
 		return NULL;
 	cJSON_AddStringToObject(root, "schema", "irrecon.axis/1");
@@ -141,19 +128,7 @@ static char *render_json(const irr_axis_report *r, const irr_spectrum *s, const 
 	                        (double)(irr_axis_report_count(r) - irr_axis_report_resolved(r)));
 	cJSON_AddNumberToObject(root, "outside", (double)irr_axis_report_outside(r));
 	cJSON_AddBoolToObject(root, "passed", irr_axis_report_passed(r));
-	txt = cJSON_Print(root);
-	cJSON_Delete(root);
-	if (!txt)
-		return NULL;
-	l = strlen(txt);
-	t2 = realloc(txt, l + 2);
-	if (!t2) {
-		free(txt);
-		return NULL;
-	}
-	t2[l] = '\n';
-	t2[l + 1] = '\0';
-	return t2;
+	return cli_json_text(root);
 }
 
 int cmd_axis(int argc, char **argv)
@@ -170,67 +145,34 @@ int cmd_axis(int argc, char **argv)
 	irr_read_options_init(&ro);
 	irr_axis_options_init(&ao);
 	irr_error_clear(&err);
-	for (int i = 1; i < argc; i++) {
-		const char *a = argv[i], *v = NULL;
-		const opt_def *d = NULL;
-		if (a[0] != '-' || !strcmp(a, "-")) {
+	cli_args args = {"axis", opts, argc, argv, 1,
+	                 CLI_ARGS_OPERANDS | CLI_ARGS_DASH_H | CLI_ARGS_NEEDS_VALUE, NULL};
+	const cli_opt *d;
+	const char *v;
+	int next, read_rc;
+	while ((next = cli_opt_next(&args, &d, &v)) != CLI_ARGS_END) {
+		if (next == CLI_ERROR)
+			return CLI_ERROR;
+		if (!d) {
 			if (path)
-				return cli_usage_error("axis", "one FILE only ('%s' and '%s')", path, a);
-			path = a;
-			continue;
-		}
-		if (!strcmp(a, "-h"))
-			a = "--help";
-		for (const opt_def *q = opts; q->name; q++)
-			if (!strcmp(a, q->name))
-				d = q;
-		if (!d)
-			return cli_usage_error("axis", "unknown option '%s'", a);
-		if (d->arg) {
-			if (i + 1 >= argc)
-				return cli_usage_error("axis", "%s needs a value", a);
-			v = argv[++i];
-		}
-		if (!strcmp(a, "--help")) {
+				return cli_usage_error("axis", "one FILE only ('%s' and '%s')", path, v);
+			path = v;
+		} else if (cli_opt_is(d, "--help")) {
 			help();
 			return CLI_OK;
-		} else if (!strcmp(a, "--json")) {
+		} else if (cli_opt_is(d, "--json")) {
 			json = 1;
-		} else if (!strcmp(a, "--output")) {
+		} else if (cli_opt_is(d, "--output")) {
 			output = v;
-		} else if (!strcmp(a, "--decimal-comma")) {
-			ro.decimal_comma = 1;
-		} else if (!strcmp(a, "--y-units")) {
-			static const irr_yunits all[] = {IRR_Y_TRANSMITTANCE, IRR_Y_PERCENT_T, IRR_Y_ABSORBANCE,
-			                                 IRR_Y_REFLECTANCE, IRR_Y_KUBELKA_MUNK, IRR_Y_ARBITRARY};
-			size_t k;
-			for (k = 0; k < sizeof all / sizeof all[0]; k++)
-				if (!strcmp(v, irr_yunits_name(all[k])))
-					break;
-			if (k == sizeof all / sizeof all[0])
-				return cli_usage_error("axis", "unknown Y units '%s'", v);
-			ro.y_units = all[k];
-		} else {
-			double num;
-			char *end;
-			if (irr_parse_double(v, &end, &num) != IRR_OK || *end)
-				return cli_usage_error("axis", "%s needs a number, not '%s'", a, v);
-			if (!strcmp(a, "--max-bytes") || !strcmp(a, "--max-points")) {
-				if (!(num >= 1 && num <= 1e15) || num != floor(num))
-					return cli_usage_error("axis", "%s needs a whole number >= 1, not '%s'", a, v);
-				if (!strcmp(a, "--max-bytes"))
-					ro.max_bytes = (size_t)num;
-				else
-					ro.max_points = (size_t)num;
-			} else if (!strcmp(a, "--block")) {
-				if (num < 1 || num > 1e6 || num != (double)(int)num)
-					return cli_usage_error("axis", "--block needs a whole number >= 1, not '%s'", v);
-				ro.block = (int)num;
-			} else if (!strcmp(a, "--search")) {
-				ao.search_cm = num;
-			} else if (!strcmp(a, "--min-snr")) {
-				ao.min_snr = num;
-			}
+		} else if ((read_rc = cli_read_option("axis", d->name, v, &ro)) >= 0) {
+			if (read_rc != CLI_OK)
+				return CLI_ERROR;
+		} else if (cli_opt_is(d, "--search")) {
+			if (cli_number_option("axis", d->name, v, &ao.search_cm))
+				return CLI_ERROR;
+		} else if (cli_opt_is(d, "--min-snr")) {
+			if (cli_number_option("axis", d->name, v, &ao.min_snr))
+				return CLI_ERROR;
 		}
 	}
 	if (!path)
