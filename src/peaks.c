@@ -277,16 +277,49 @@ static double median_inplace(double *a, size_t n)
 	return select_kth(a, n, n / 2);
 }
 
+/* The median of a[0..n-1] (reorders a) when a neighbouring block's median
+ * `near` is known: noise levels change little from block to block, so
+ * [near/1.5, near*1.5] likely holds the median; one pass counts what lies
+ * below and gathers what lies inside, and only those are searched. When
+ * the guess misses, a is a permutation of the input and the plain search
+ * runs on all of it. The value is the same either way. */
+static double median_near(double *a, size_t n, double near)
+{
+	if (n == 0)
+		return 0.0;
+	size_t k = n / 2;
+	if (near > 0.0) {
+		double lo = near / 1.5, hi = near * 1.5;
+		size_t below = 0, m = 0;
+		for (size_t i = 0; i < n; i++) {
+			double v = a[i];
+			if (v < lo) {
+				below++;
+			} else if (v <= hi) {
+				a[i] = a[m];
+				a[m++] = v;
+			}
+		}
+		if (below <= k && k < below + m)
+			return select_small(a, m, k - below);
+	}
+	return select_small(a, n, k);
+}
+
 /* Robust sd of white noise from second differences: d = y[i-1]-2y[i]+y[i+1]
  * has sd sigma*sqrt(6); MAD*1.4826 estimates the sd of a normal sample.
  * dd[i] holds |d| centred on i (computed once for the global level and all
  * blocks); the median of dd[a..e-1] is taken on a copy in scratch. */
-static double noise_of(const double *dd, size_t a, size_t e, double *scratch)
+static double noise_of(const double *dd, size_t a, size_t e, double *scratch, double *near)
 {
+	double med;
 	if (e <= a)
 		return 0.0;
 	memcpy(scratch, dd + a, (e - a) * sizeof *scratch);
-	return 1.4826 * median_inplace(scratch, e - a) / sqrt(6.0);
+	med = near ? median_near(scratch, e - a, *near) : median_inplace(scratch, e - a);
+	if (near)
+		*near = med;
+	return 1.4826 * med / sqrt(6.0);
 }
 
 /* Lower convex hull of (x, y) by Andrew's monotone chain (x ascending),
@@ -777,7 +810,7 @@ checked:
 	 * white level. A floor keeps noise-free (synthetic or heavily
 	 * quantised) data from giving 0. */
 	{
-		double range = 0.0, lo = w.y[0], hi = w.y[0], q = HUGE_VAL;
+		double range = 0.0, lo = w.y[0], hi = w.y[0], q = HUGE_VAL, near = 0.0, near2 = 0.0;
 		double *bn = w.blk, *bd = w.blk + nb;
 		double *dd = w.lb; /* free until the prominences */
 		/* One pass: the range, the second differences (for the block and
@@ -805,9 +838,9 @@ checked:
 			size_t a = b * NOISE_BLOCK, e = a + NOISE_BLOCK;
 			if (e > n - 1)
 				e = n - 1;
-			bn[b] = noise_of(dd, a > 0 ? a : 1, e, w.scratch);
+			bn[b] = noise_of(dd, a > 0 ? a : 1, e, w.scratch, &near);
 		}
-		sigma = noise_of(dd, 1, n - 1, w.scratch);
+		sigma = noise_of(dd, 1, n - 1, w.scratch, NULL);
 		if (sigma < 1e-5 * range)
 			sigma = 1e-5 * range;
 		/* Quantised data without visible noise (a flat run of one stored
@@ -826,7 +859,8 @@ checked:
 			bn[b] = sb > sigma ? sb : sigma;
 			for (size_t i = a; i < e; i++)
 				w.scratch[m++] = fabs(w.d2[i]);
-			sb = 1.4826 * median_inplace(w.scratch, m);
+			near2 = median_near(w.scratch, m, near2);
+			sb = 1.4826 * near2;
 			bd[b] = sb > sigma * gain2 ? sb : sigma * gain2;
 			if (bn[b] < bd[b] / gain2)
 				bn[b] = bd[b] / gain2;
