@@ -19,14 +19,7 @@
 #include "irrecon/spectrum.h"
 #include "irrecon/tables.h"
 
-typedef struct opt_def {
-	const char *name;
-	const char *arg;   /* NULL: a flag */
-	const char *help;
-} opt_def;
-
-/* One table drives parsing and --help. */
-static const opt_def opts[] = {
+static const cli_opt opts[] = {
 	{"--structure", "SMILES", "the proposed structure"},
 	{"--structure-file", "FILE", "read the structure from FILE (first SMILES in it)"},
 	{"--spectrum", "FILE", "the measured spectrum (JCAMP-DX or CSV/TSV)"},
@@ -34,7 +27,7 @@ static const opt_def opts[] = {
 	{"--starting-material", "S", "a starting material (SMILES or library name); repeatable"},
 	{"--reagent", "S", "a reagent (SMILES or library name); repeatable"},
 	{"--solvent", "S", "a solvent (library name such as \"ethyl acetate\", or SMILES);\n"
-	                   "                          repeatable"},
+	                   "repeatable"},
 	{"--sample", "ID", "the sample id, carried into the reports"},
 	{"--phase", "P", "condensed (default), solution or gas"},
 	{"--sampling", "S", "atr (default) or transmission"},
@@ -47,7 +40,7 @@ static const opt_def opts[] = {
 	{"--tables", "DIR", "group tables folder (default: the installed tables)"},
 	{"--add-table", "FILE", "an extra group table; repeatable"},
 	{"--request", "FILE", "run a JSON request (irrecon.request/1; '-' = stdin) and\n"
-	                      "                          print its JSON result"},
+	                      "print its JSON result"},
 	{"--list-solvents", NULL, "list the solvent and reagent library and stop"},
 	{"--help", NULL, "show this help"},
 	{NULL, NULL, NULL}
@@ -64,11 +57,7 @@ static void help(void)
 	       "solvents given (and to CO2, water vapour and moisture), and reports a\n"
 	       "verdict: consistent, consistent_impure, inconsistent or inconclusive.\n\n"
 	       "Options:\n");
-	for (const opt_def *d = opts; d->name; d++) {
-		char lhs[48];
-		snprintf(lhs, sizeof lhs, "%s%s%s", d->name, d->arg ? " " : "", d->arg ? d->arg : "");
-		printf("  %-24s%s\n", lhs, d->help);
-	}
+	cli_opt_help(opts, 23);
 	printf("\nA verdict is evidence, never proof of identity or purity; follow your\n"
 	       "lab's approved procedures and local safety rules.\n\n"
 	       "Exit status: 0 consistent, 1 any other verdict, 2 error.\n");
@@ -203,14 +192,6 @@ int cli_check_set_input(irr_check *c, irr_check_options *o, const char *spectrum
 }
 
 /* ---- check ---- */
-
-static const opt_def *find_opt(const char *a)
-{
-	for (const opt_def *d = opts; d->name; d++)
-		if (!strcmp(a, d->name))
-			return d;
-	return NULL;
-}
 
 static int exit_for(irr_verdict v)
 {
@@ -349,19 +330,15 @@ int cmd_check(int argc, char **argv)
 		irr_error_set(&err, IRR_ENOMEM, "", 0, "out of memory");
 		return cli_fail(&err);
 	}
-	for (int i = 1; i < argc; i++) {
-		const char *a = argv[i], *v = NULL;
-		const opt_def *d = find_opt(a);
-		if (!d) {
-			status = cli_usage_error("check", "unknown option '%s'", a);
+	cli_args args = {"check", opts, argc, argv, 1, 0, NULL};
+	const cli_opt *d;
+	const char *v;
+	int next;
+	while ((next = cli_opt_next(&args, &d, &v)) != CLI_ARGS_END) {
+		const char *a = d ? d->name : "";
+		if (next == CLI_ERROR) {
+			status = CLI_ERROR;
 			goto out;
-		}
-		if (d->arg) {
-			if (i + 1 >= argc) {
-				status = cli_usage_error("check", "%s needs %s", a, d->arg);
-				goto out;
-			}
-			v = argv[++i];
 		}
 		if (!strcmp(a, "--help")) {
 			help();
@@ -393,17 +370,10 @@ int cmd_check(int argc, char **argv)
 		else if (!strcmp(a, "--request")) request = v;
 		else if (!strcmp(a, "--list-solvents")) list = 1;
 		else if (!strcmp(a, "--block") || !strcmp(a, "--max-bytes") || !strcmp(a, "--max-points")) {
-			size_t n;
-			if (cli_parse_count(a, v, &n) || (!strcmp(a, "--block") && n > 100000)) {
-				status = cli_usage_error("check", "%s needs a whole number >= 1, not '%s'", a, v);
+			if (cli_count_option("check", a, v, &ro)) {
+				status = CLI_ERROR;
 				goto out;
 			}
-			if (!strcmp(a, "--block"))
-				ro.block = (int)n;
-			else if (!strcmp(a, "--max-bytes"))
-				ro.max_bytes = n;
-			else
-				ro.max_points = n;
 		}
 	}
 	if (list) {
