@@ -17,13 +17,7 @@
 #define RANK_SCHEMA "irrecon.rank/1"
 #define KEY_REASONS 3
 
-typedef struct opt_def {
-	const char *name;
-	const char *arg;
-	const char *help;
-} opt_def;
-
-static const opt_def opts[] = {
+static const cli_opt opts[] = {
 	{"--candidate", "SMILES", "a candidate structure; repeat for each (at least one)"},
 	{"--candidates-file", "FILE", "candidates from FILE, one SMILES per line ('#' comments)"},
 	{"--spectrum", "FILE", "the measured spectrum (JCAMP-DX or CSV/TSV)"},
@@ -52,11 +46,7 @@ static void help(void)
 	       "consistent before consistent_impure before inconclusive before\n"
 	       "inconsistent, then by score; ties keep the order given.\n\n"
 	       "Options:\n");
-	for (const opt_def *d = opts; d->name; d++) {
-		char lhs[48];
-		snprintf(lhs, sizeof lhs, "%s%s%s", d->name, d->arg ? " " : "", d->arg ? d->arg : "");
-		printf("  %-24s%s\n", lhs, d->help);
-	}
+	cli_opt_help(opts, 23);
 	printf("\nExit status: 0 when some candidate is consistent, 1 otherwise, 2 error.\n");
 }
 
@@ -171,8 +161,6 @@ static char *render_text(entry *e, size_t n, const char *sample)
 static char *render_json(entry *e, size_t n, const char *sample)
 {
 	cJSON *root = cJSON_CreateObject(), *arr;
-	char *txt, *out;
-	size_t len;
 	if (!root)
 		return NULL;
 	cJSON_AddStringToObject(root, "schema", RANK_SCHEMA);
@@ -190,19 +178,7 @@ static char *render_json(entry *e, size_t n, const char *sample)
 		cJSON_AddItemToObject(o, "result", res);
 		cJSON_AddItemToArray(arr, o);
 	}
-	txt = cJSON_Print(root);
-	cJSON_Delete(root);
-	if (!txt)
-		return NULL;
-	len = strlen(txt);
-	out = malloc(len + 2);
-	if (out) {
-		memcpy(out, txt, len);
-		out[len] = '\n';
-		out[len + 1] = '\0';
-	}
-	cJSON_free(txt);
-	return out;
+	return cli_json_text(root);
 }
 
 int cmd_rank(int argc, char **argv)
@@ -231,22 +207,15 @@ int cmd_rank(int argc, char **argv)
 		irr_error_set(&err, IRR_ENOMEM, "", 0, "out of memory");
 		goto fail;
 	}
-	for (int i = 1; i < argc; i++) {
-		const char *a = argv[i], *v = NULL;
-		const opt_def *d = NULL;
-		for (const opt_def *q = opts; q->name; q++)
-			if (!strcmp(a, q->name))
-				d = q;
-		if (!d) {
-			status = cli_usage_error("rank", "unknown option '%s'", a);
+	cli_args args = {"rank", opts, argc, argv, 1, 0, NULL};
+	const cli_opt *d;
+	const char *v;
+	int next;
+	while ((next = cli_opt_next(&args, &d, &v)) != CLI_ARGS_END) {
+		const char *a = d ? d->name : "";
+		if (next == CLI_ERROR) {
+			status = CLI_ERROR;
 			goto out;
-		}
-		if (d->arg) {
-			if (i + 1 >= argc) {
-				status = cli_usage_error("rank", "%s needs %s", a, d->arg);
-				goto out;
-			}
-			v = argv[++i];
 		}
 		if (!strcmp(a, "--help")) {
 			help();
@@ -282,17 +251,10 @@ int cmd_rank(int argc, char **argv)
 		else if (!strcmp(a, "--tables")) tables_dir = v;
 		else if (!strcmp(a, "--add-table")) extra[nextra++] = (char *)v;
 		else if (!strcmp(a, "--block") || !strcmp(a, "--max-bytes") || !strcmp(a, "--max-points")) {
-			size_t n;
-			if (cli_parse_count(a, v, &n) || (!strcmp(a, "--block") && n > 100000)) {
-				status = cli_usage_error("rank", "%s needs a whole number >= 1, not '%s'", a, v);
+			if (cli_count_option("rank", a, v, &ro)) {
+				status = CLI_ERROR;
 				goto out;
 			}
-			if (!strcmp(a, "--block"))
-				ro.block = (int)n;
-			else if (!strcmp(a, "--max-bytes"))
-				ro.max_bytes = n;
-			else
-				ro.max_points = n;
 		}
 	}
 	if (!ncand) {
