@@ -26,26 +26,19 @@
 #include "irrecon/request.h"
 #include "irrecon/tables.h"
 
-typedef struct opt_def {
-	const char *name;
-	const char *arg;   /* NULL: a flag */
-	const char *help;
-} opt_def;
-
-/* One table drives parsing and --help. */
-static const opt_def opts[] = {
+static const cli_opt opts[] = {
 	{"--out", "FILE", "write the JSON lines to FILE (replaced atomically at the end)\n"
-	                  "                       instead of stdout; --output is the same"},
+	                  "instead of stdout; --output is the same"},
 	{"--jobs", "N", "run N worker processes (default 1)"},
 	{"--shard", "K/N", "check only samples K, K+N, K+2N, ... (1 <= K <= N)"},
 	{"--format", "FMT", "manifest format: csv or jsonl (default: from the extension\n"
-	                    "                       or the content)"},
+	                    "or the content)"},
 	{"--allow-outside", NULL, "accept absolute paths, '..' and links leading out of the\n"
-	                          "                       manifest's folder"},
+	                          "manifest's folder"},
 	{"--phase", "PHASE", "default for rows without one: condensed, solution, gas"},
 	{"--sampling", "MODE", "default for rows without one: atr, transmission"},
 	{"--tables", "DIR", "group-frequency tables folder (default: $IRRECON_TABLES,\n"
-	                    "                       else the installed tables)"},
+	                    "else the installed tables)"},
 	{"--add-table", "FILE", "an extra group table; repeatable"},
 	{"--max-bytes", "N", "refuse input files larger than N bytes (default 256 MiB)"},
 	{"--max-points", "N", "refuse spectra of more than N points (default 4,000,000)"},
@@ -70,11 +63,7 @@ static void help(void)
 	       "relative to the manifest's folder and must stay inside it unless\n"
 	       "--allow-outside is given.\n\n"
 	       "Options:\n");
-	for (const opt_def *d = opts; d->name; d++) {
-		char lhs[40];
-		snprintf(lhs, sizeof lhs, "%s%s%s", d->name, d->arg ? " " : "", d->arg ? d->arg : "");
-		printf("  %-20s %s\n", lhs, d->help);
-	}
+	cli_opt_help(opts, 20);
 	printf("\nShards: `--shard K/N` on N machines; merge the outputs in manifest order\n"
 	       "with  paste -d '\\n' out.1 out.2 ... out.N | sed '/^$/d'\n\n"
 	       "Exit status: 0 every sample consistent, 1 some sample not consistent,\n"
@@ -82,15 +71,7 @@ static void help(void)
 	       "A verdict is evidence, never proof of identity or purity.\n");
 }
 
-static const opt_def *find_opt(const char *a)
-{
-	if (!strcmp(a, "--output"))
-		a = "--out";
-	for (const opt_def *d = opts; d->name; d++)
-		if (!strcmp(a, d->name))
-			return d;
-	return NULL;
-}
+static const char *const aliases[] = {"--output", "--out", NULL};
 
 /* ---- Output: stdout, or a temporary file renamed at the end ---------------- */
 
@@ -680,32 +661,24 @@ int cmd_batch(int argc, char **argv)
 		irr_request_free(base);
 		return cli_usage_error("batch", "out of memory");
 	}
-	for (int i = 1; i < argc; i++) {
-		const char *a = argv[i], *v = NULL;
-		const opt_def *d;
-		if (a[0] != '-' || !strcmp(a, "-")) {
-			if (manifest_path) {
-				status = cli_usage_error("batch", "one MANIFEST only ('%s' and '%s')", manifest_path, a);
-				goto done;
-			}
-			manifest_path = a;
-			continue;
-		}
-		if (!strcmp(a, "-h"))
-			a = "--help";
-		if (!(d = find_opt(a))) {
-			status = cli_usage_error("batch", "unknown option '%s'", a);
+	cli_args args = {"batch", opts, argc, argv, 1,
+	                 CLI_ARGS_OPERANDS | CLI_ARGS_DASH_H | CLI_ARGS_NEEDS_VALUE, aliases};
+	const cli_opt *d;
+	const char *v;
+	int next;
+	while ((next = cli_opt_next(&args, &d, &v)) != CLI_ARGS_END) {
+		const char *a = d ? d->name : "";
+		if (next == CLI_ERROR) {
+			status = CLI_ERROR;
 			goto done;
 		}
-		a = d->name;
-		if (d->arg) {
-			if (i + 1 >= argc) {
-				status = cli_usage_error("batch", "%s needs a value", a);
+		if (!d) {
+			if (manifest_path) {
+				status = cli_usage_error("batch", "one MANIFEST only ('%s' and '%s')", manifest_path, v);
 				goto done;
 			}
-			v = argv[++i];
-		}
-		if (!strcmp(a, "--help")) {
+			manifest_path = v;
+		} else if (!strcmp(a, "--help")) {
 			help();
 			status = CLI_OK;
 			goto done;
@@ -733,15 +706,10 @@ int cmd_batch(int argc, char **argv)
 				goto done;
 			}
 		} else if (!strcmp(a, "--max-bytes") || !strcmp(a, "--max-points")) {
-			size_t n;
-			if (cli_parse_count(a, v, &n)) {
-				status = cli_usage_error("batch", "%s needs a whole number >= 1, not '%s'", a, v);
+			if (cli_count_option("batch", a, v, irr_request_read_options(base))) {
+				status = CLI_ERROR;
 				goto done;
 			}
-			if (!strcmp(a, "--max-bytes"))
-				irr_request_read_options(base)->max_bytes = n;
-			else
-				irr_request_read_options(base)->max_points = n;
 		} else if (!strcmp(a, "--allow-outside")) {
 			allow_outside = 1;
 		} else if (!strcmp(a, "--phase")) {
@@ -807,12 +775,12 @@ int cmd_batch(int argc, char **argv)
 	if (jobs == 1) {
 		for (size_t q = 0; q < nsel; q++) {
 			char *line = NULL, msg[2200] = "";
-			int v = run_one(&j, sel[q], &line, msg, sizeof msg);
+			int verdict = run_one(&j, sel[q], &line, msg, sizeof msg);
 			if (!line) {
 				irr_error_set(&err, IRR_ENOMEM, manifest_path, 0, "out of memory");
 				break;
 			}
-			emit(&o, &tl, m, sel[q], v, line, strlen(line), msg);
+			emit(&o, &tl, m, sel[q], verdict, line, strlen(line), msg);
 			free(line);
 		}
 	} else if (run_parallel(&j, sel, nsel, (int)jobs, &o, &tl) != 0) {
