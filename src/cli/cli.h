@@ -41,17 +41,22 @@ struct cJSON;
 /* One option of a command. One table per command (ended by a NULL name)
  * drives its argv loop, its --help list and so the man page. */
 typedef struct cli_opt {
-	const char *name;  /* "--json" */
+	const char *name;  /* "--json"; a short form may lead: "-o, --output" */
 	const char *arg;   /* value name for --help ("FILE"); NULL: a flag */
-	const char *help;  /* one line; '\n' continues under the first line */
+	const char *help;  /* '\n' continues under the first line; a leading
+	                    * '\n' starts it on the next line. NULL: `name` is
+	                    * a section heading of --help, not an option */
 } cli_opt;
 
-/* The option named `name` in `opts`, or NULL. */
+/* The option's long name: "--output" for "-o, --output". */
+const char *cli_opt_long(const cli_opt *opt);
+/* The option whose long name is `name` in `opts`, or NULL. */
 const cli_opt *cli_opt_find(const cli_opt *opts, const char *name);
 /* Prints the table for --help: "  NAME ARG" padded to `width` columns, a
- * blank, the help text. */
+ * blank, the help text; a heading after a blank line (none before the
+ * first entry). */
 void cli_opt_help(const cli_opt *opts, int width);
-/* 1 when opt is the option `name`. */
+/* 1 when opt is the option with the long name `name`. */
 int cli_opt_is(const cli_opt *opt, const char *name);
 
 /* Flags of cli_args. */

@@ -11,10 +11,18 @@
 
 #include <cjson/cJSON.h>
 
+const char *cli_opt_long(const cli_opt *opt)
+{
+	const char *l = opt->name;
+	if (l[0] == '-' && l[1] != '-' && l[1] && !strncmp(l + 2, ", ", 2))
+		l += 4;
+	return l;
+}
+
 const cli_opt *cli_opt_find(const cli_opt *opts, const char *name)
 {
 	for (const cli_opt *d = opts; d->name; d++)
-		if (!strcmp(name, d->name))
+		if (d->help && !strcmp(name, cli_opt_long(d)))
 			return d;
 	return NULL;
 }
@@ -23,8 +31,12 @@ void cli_opt_help(const cli_opt *opts, int width)
 {
 	for (const cli_opt *d = opts; d->name; d++) {
 		char lhs[64];
+		if (!d->help) {
+			printf("%s%s\n", d == opts ? "" : "\n", d->name);
+			continue;
+		}
 		snprintf(lhs, sizeof lhs, "%s%s%s", d->name, d->arg ? " " : "", d->arg ? d->arg : "");
-		printf("  %-*s ", width, lhs);
+		printf("  %-*s%s", width, lhs, d->help[0] == '\n' ? "" : " ");
 		/* Continuation lines of the help text line up under its first. */
 		for (const char *h = d->help; *h; h++) {
 			putchar(*h);
@@ -71,7 +83,7 @@ int cli_opt_next(cli_args *p, const cli_opt **opt, const char **value)
 
 int cli_opt_is(const cli_opt *opt, const char *name)
 {
-	return opt && !strcmp(opt->name, name);
+	return opt && !strcmp(cli_opt_long(opt), name);
 }
 
 int cli_parse_count(const char *opt, const char *v, size_t *out)
