@@ -17,42 +17,82 @@
 #define CMD "synth"
 #define MAX_COMPONENTS 64
 
-static void help(FILE *f)
+/* One table drives getopt_long (abbreviations and --name=value stay
+ * accepted), --help and the man page. Entries without help are headings. */
+static const cli_opt opts[] = {
+	{"Structures:", NULL, NULL},
+	{"--structure", "SMILES", "the main compound; it takes the share the\n"
+	                          "components leave (1 - their sum)"},
+	{"--structure-file", "FILE", "the same, read from FILE (first SMILES in it)"},
+	{"--component", "SMILES:SHARE", "another compound and its share (0..1); repeatable.\n"
+	                                "Without --structure the shares are rescaled to 1"},
+	{"Output:", NULL, NULL},
+	{"-o, --output", "FILE", "where to write (default '-', standard output)"},
+	{"--format", "jcamp|jcamp-affn|csv", "\ndefault from the file name (.csv gives csv),\n"
+	                                     "else JCAMP-DX 4.24 with DIF/DUP compression"},
+	{"--units", "absorbance|transmittance", "  (default absorbance)"},
+	{"--title", "TEXT", "##TITLE of the JCAMP-DX file"},
+	{"--owner", "TEXT", "##OWNER of the JCAMP-DX file"},
+	{"Spectrum:", NULL, NULL},
+	{"--range", "LOW:HIGH", "cm-1 (default 400:4000)"},
+	{"--spacing", "CM", "cm-1 between points (default 1)"},
+	{"--sampling", "atr|transmission", "  (default atr: bands weaken as 1/wavenumber)"},
+	{"--phase", "condensed|solution|gas", "(default condensed)"},
+	{"--max-absorbance", "A", "height of the strongest band (default 0.8)"},
+	{"--baseline", "LOW:HIGH", "baseline absorbance at the low and high\n"
+	                           "wavenumber ends (default 0:0)"},
+	{"--co2", "A", "atmospheric CO2: the 2360/2340 pair at A, 667 at 0.6 A"},
+	{"--noise", "RMS", "white Gaussian noise, absorbance (default 0)"},
+	{"--seed", "N", "noise seed (default 1); same seed, same file"},
+	{"--tables", "DIR", "group-frequency tables (default: built in)"},
+	{NULL, NULL, NULL}
+};
+#define N_OPTS (sizeof opts / sizeof opts[0])
+
+static void help(void)
 {
-	fprintf(f,
-	"usage: irrecon synth --structure SMILES [--component SMILES:SHARE]... [OPTIONS]\n"
-	"       irrecon synth --component SMILES:SHARE [--component SMILES:SHARE]... [OPTIONS]\n\n"
-	"Writes the infrared spectrum a structure, or a mixture, should give: each\n"
-	"predicted band drawn as a Lorentzian line at its typical position, its width\n"
-	"from its shape class and its height from its intensity class.\n\n"
-	"Structures:\n"
-	"  --structure SMILES        the main compound; it takes the share the\n"
-	"                            components leave (1 - their sum)\n"
-	"  --structure-file FILE     the same, read from FILE (first SMILES in it)\n"
-	"  --component SMILES:SHARE  another compound and its share (0..1); repeatable.\n"
-	"                            Without --structure the shares are rescaled to 1\n\n"
-	"Output:\n"
-	"  -o, --output FILE         where to write (default '-', standard output)\n"
-	"  --format jcamp|jcamp-affn|csv\n"
-	"                            default from the file name (.csv gives csv),\n"
-	"                            else JCAMP-DX 4.24 with DIF/DUP compression\n"
-	"  --units absorbance|transmittance   (default absorbance)\n"
-	"  --title TEXT              ##TITLE of the JCAMP-DX file\n"
-	"  --owner TEXT              ##OWNER of the JCAMP-DX file\n\n"
-	"Spectrum:\n"
-	"  --range LOW:HIGH          cm-1 (default 400:4000)\n"
-	"  --spacing CM              cm-1 between points (default 1)\n"
-	"  --sampling atr|transmission   (default atr: bands weaken as 1/wavenumber)\n"
-	"  --phase condensed|solution|gas (default condensed)\n"
-	"  --max-absorbance A        height of the strongest band (default 0.8)\n"
-	"  --baseline LOW:HIGH       baseline absorbance at the low and high\n"
-	"                            wavenumber ends (default 0:0)\n"
-	"  --co2 A                   atmospheric CO2: the 2360/2340 pair at A, 667 at 0.6 A\n"
-	"  --noise RMS               white Gaussian noise, absorbance (default 0)\n"
-	"  --seed N                  noise seed (default 1); same seed, same file\n"
-	"  --tables DIR              group-frequency tables (default: built in)\n\n"
-	"A synthetic spectrum is a sketch from group-frequency tables, not a\n"
-	"measurement: use it to see what to expect, never as reference data.\n");
+	printf("usage: irrecon synth --structure SMILES [--component SMILES:SHARE]... [OPTIONS]\n"
+	       "       irrecon synth --component SMILES:SHARE [--component SMILES:SHARE]... [OPTIONS]\n\n"
+	       "Writes the infrared spectrum a structure, or a mixture, should give: each\n"
+	       "predicted band drawn as a Lorentzian line at its typical position, its width\n"
+	       "from its shape class and its height from its intensity class.\n\n");
+	cli_opt_help(opts, 25);
+	printf("\nA synthetic spectrum is a sketch from group-frequency tables, not a\n"
+	       "measurement: use it to see what to expect, never as reference data.\n");
+}
+
+/* getopt_long's view of the table: long options get the values 256, 257,
+ * ... in table order, a leading short form ("-o, --output") its letter;
+ * --help and -h are implied. */
+static void getopt_table(struct option *lo, const cli_opt **by_index, char *shorts)
+{
+	int code = 256;
+	size_t n = 0;
+	char *sp = shorts;
+	for (const cli_opt *d = opts; d->name; d++) {
+		if (!d->help)
+			continue;
+		lo[n].name = cli_opt_long(d) + 2;
+		lo[n].has_arg = d->arg ? required_argument : no_argument;
+		lo[n].flag = NULL;
+		if (d->name[1] != '-') {
+			lo[n].val = d->name[1];
+			*sp++ = d->name[1];
+			if (d->arg)
+				*sp++ = ':';
+		} else {
+			lo[n].val = code++;
+		}
+		by_index[n++] = d;
+	}
+	lo[n].name = "help";
+	lo[n].has_arg = no_argument;
+	lo[n].flag = NULL;
+	lo[n].val = code;
+	by_index[n++] = NULL;
+	memset(&lo[n], 0, sizeof lo[n]);
+	*sp++ = 'h';
+	*sp = '\0';
 }
 
 static int parse_num(const char *s, double *v)
@@ -162,34 +202,11 @@ static void print_cautions(const irr_synth_component *c, size_t n, const irr_tab
 	}
 }
 
-enum { O_STRUCTURE = 256, O_STRUCTURE_FILE, O_COMPONENT, O_FORMAT, O_UNITS, O_TITLE, O_OWNER,
-       O_RANGE, O_SPACING, O_SAMPLING, O_PHASE, O_MAXABS, O_BASELINE, O_CO2,
-       O_NOISE, O_SEED, O_TABLES, O_HELP };
-
 int cmd_synth(int argc, char **argv)
 {
-	static const struct option longopts[] = {
-		{"structure", required_argument, NULL, O_STRUCTURE},
-		{"structure-file", required_argument, NULL, O_STRUCTURE_FILE},
-		{"component", required_argument, NULL, O_COMPONENT},
-		{"output", required_argument, NULL, 'o'},
-		{"format", required_argument, NULL, O_FORMAT},
-		{"units", required_argument, NULL, O_UNITS},
-		{"title", required_argument, NULL, O_TITLE},
-		{"owner", required_argument, NULL, O_OWNER},
-		{"range", required_argument, NULL, O_RANGE},
-		{"spacing", required_argument, NULL, O_SPACING},
-		{"sampling", required_argument, NULL, O_SAMPLING},
-		{"phase", required_argument, NULL, O_PHASE},
-		{"max-absorbance", required_argument, NULL, O_MAXABS},
-		{"baseline", required_argument, NULL, O_BASELINE},
-		{"co2", required_argument, NULL, O_CO2},
-		{"noise", required_argument, NULL, O_NOISE},
-		{"seed", required_argument, NULL, O_SEED},
-		{"tables", required_argument, NULL, O_TABLES},
-		{"help", no_argument, NULL, O_HELP},
-		{NULL, 0, NULL, 0}
-	};
+	struct option longopts[N_OPTS + 1];
+	const cli_opt *by_index[N_OPTS + 1];
+	char shorts[2 * N_OPTS + 2];
 	irr_synth_options so;
 	irr_write_options wo;
 	irr_synth_component comp[MAX_COMPONENTS + 1];
@@ -208,100 +225,88 @@ int cmd_synth(int argc, char **argv)
 	irr_synth_options_init(&so);
 	irr_write_options_init(&wo);
 	wo.origin = "irrecon synth (predicted from group-frequency tables)";
+	getopt_table(longopts, by_index, shorts);
 	optind = 1;
 	opterr = 0;
-	while ((opt = getopt_long(argc, argv, "o:h", longopts, NULL)) != -1) {
+	while ((opt = getopt_long(argc, argv, shorts, longopts, NULL)) != -1) {
+		const cli_opt *d = NULL;
+		int known = 0;
 		double a, b;
-		switch (opt) {
-		case O_STRUCTURE:
-		case O_STRUCTURE_FILE:
+		for (size_t k = 0; longopts[k].name; k++)
+			if (longopts[k].val == opt) {
+				d = by_index[k];
+				known = 1;
+			}
+		if (!known && opt != 'h') {
+			if (optopt)
+				return cli_usage_error(CMD, "option -%c is unknown or lacks its value", optopt);
+			return cli_usage_error(CMD, "unknown option or missing value: '%s'", argv[optind - 1]);
+		}
+		if (!d) {
+			help();
+			return CLI_OK;
+		} else if (cli_opt_is(d, "--structure") || cli_opt_is(d, "--structure-file")) {
 			if (structure)
 				return cli_usage_error(CMD, "give --structure or --structure-file once");
 			structure = optarg;
-			structure_is_file = opt == O_STRUCTURE_FILE;
-			break;
-		case O_COMPONENT:
+			structure_is_file = cli_opt_is(d, "--structure-file");
+		} else if (cli_opt_is(d, "--component")) {
 			if (ncomp >= MAX_COMPONENTS)
 				return cli_usage_error(CMD, "at most %d components", MAX_COMPONENTS);
 			if (parse_component(optarg, &comp[ncomp]) < 0)
 				return cli_usage_error(CMD, "--component wants SMILES:SHARE, got '%s'", optarg);
 			ncomp++;
-			break;
-		case 'o':
+		} else if (cli_opt_is(d, "--output")) {
 			output = optarg;
-			break;
-		case O_FORMAT:
+		} else if (cli_opt_is(d, "--format")) {
 			if (strcmp(optarg, "jcamp") && strcmp(optarg, "jcamp-affn") && strcmp(optarg, "csv"))
 				return cli_usage_error(CMD, "--format is jcamp, jcamp-affn or csv, not '%s'", optarg);
 			format = optarg;
-			break;
-		case O_UNITS:
+		} else if (cli_opt_is(d, "--units")) {
 			if (!strcmp(optarg, "absorbance"))
 				so.y_units = IRR_Y_ABSORBANCE;
 			else if (!strcmp(optarg, "transmittance"))
 				so.y_units = IRR_Y_TRANSMITTANCE;
 			else
 				return cli_usage_error(CMD, "--units is absorbance or transmittance, not '%s'", optarg);
-			break;
-		case O_TITLE:
+		} else if (cli_opt_is(d, "--title")) {
 			wo.title = optarg;
-			break;
-		case O_OWNER:
+		} else if (cli_opt_is(d, "--owner")) {
 			wo.owner = optarg;
-			break;
-		case O_RANGE:
+		} else if (cli_opt_is(d, "--range")) {
 			if (parse_pair(optarg, &a, &b) < 0 || !(a > 0) || !(b > a))
 				return cli_usage_error(CMD, "--range wants LOW:HIGH in cm-1, got '%s'", optarg);
 			so.low = a;
 			so.high = b;
-			break;
-		case O_SPACING:
+		} else if (cli_opt_is(d, "--spacing")) {
 			if (parse_num(optarg, &so.spacing) < 0 || !(so.spacing > 0))
 				return cli_usage_error(CMD, "--spacing wants a number > 0, got '%s'", optarg);
-			break;
-		case O_SAMPLING:
+		} else if (cli_opt_is(d, "--sampling")) {
 			if (irr_sampling_parse(optarg, &so.sampling) != IRR_OK)
 				return cli_usage_error(CMD, "--sampling is atr or transmission, not '%s'", optarg);
-			break;
-		case O_PHASE:
+		} else if (cli_opt_is(d, "--phase")) {
 			if (irr_phase_parse(optarg, &so.phase) != IRR_OK)
 				return cli_usage_error(CMD, "--phase is condensed, solution or gas, not '%s'", optarg);
-			break;
-		case O_MAXABS:
+		} else if (cli_opt_is(d, "--max-absorbance")) {
 			if (parse_num(optarg, &so.max_absorbance) < 0)
 				return cli_usage_error(CMD, "--max-absorbance wants a number, got '%s'", optarg);
-			break;
-		case O_BASELINE:
+		} else if (cli_opt_is(d, "--baseline")) {
 			if (parse_pair(optarg, &so.baseline_low, &so.baseline_high) < 0)
 				return cli_usage_error(CMD, "--baseline wants LOW:HIGH absorbances, got '%s'", optarg);
-			break;
-		case O_CO2:
+		} else if (cli_opt_is(d, "--co2")) {
 			if (parse_num(optarg, &so.co2) < 0 || so.co2 < 0)
 				return cli_usage_error(CMD, "--co2 wants an absorbance >= 0, got '%s'", optarg);
-			break;
-		case O_NOISE:
+		} else if (cli_opt_is(d, "--noise")) {
 			if (parse_num(optarg, &so.noise) < 0 || so.noise < 0)
 				return cli_usage_error(CMD, "--noise wants an absorbance >= 0, got '%s'", optarg);
-			break;
-		case O_SEED: {
+		} else if (cli_opt_is(d, "--seed")) {
 			char *end;
 			unsigned long long v = strtoull(optarg, &end, 10);
 			if (!*optarg || *end || optarg[0] == '-')
 				return cli_usage_error(CMD, "--seed wants a whole number >= 0, got '%s'", optarg);
 			so.seed = (uint64_t)v;
-			break;
-		}
-		case O_TABLES:
+		} else if (cli_opt_is(d, "--tables")) {
 			tables_dir = optarg;
-			break;
-		case O_HELP:
-		case 'h':
-			help(stdout);
-			return CLI_OK;
-		default:
-			if (optopt)
-				return cli_usage_error(CMD, "option -%c is unknown or lacks its value", optopt);
-			return cli_usage_error(CMD, "unknown option or missing value: '%s'", argv[optind - 1]);
 		}
 	}
 	if (optind < argc)
