@@ -191,6 +191,80 @@ int cli_check_set_input(irr_check *c, irr_check_options *o, const char *spectrum
 	return irr_check_set_peaks(c, pl, err);
 }
 
+int cli_check_args_init(cli_check_args *ca, int argc)
+{
+	memset(ca, 0, sizeof *ca);
+	irr_check_options_init(&ca->o);
+	irr_read_options_init(&ca->ro);
+	ca->extra = calloc((size_t)argc + 1, sizeof *ca->extra);
+	ca->others = calloc((size_t)argc + 1, sizeof *ca->others);
+	return ca->extra && ca->others ? 0 : -1;
+}
+
+void cli_check_args_free(cli_check_args *ca)
+{
+	free(ca->extra);
+	free(ca->others);
+	ca->extra = NULL;
+	ca->others = NULL;
+}
+
+int cli_check_option(const char *cmd, const char *a, const char *v, cli_check_args *ca)
+{
+	static const struct { const char *opt; irr_other_kind kind; } other[] = {
+		{"--starting-material", IRR_OTHER_STARTING_MATERIAL},
+		{"--reagent", IRR_OTHER_REAGENT},
+		{"--solvent", IRR_OTHER_SOLVENT},
+	};
+	for (size_t k = 0; k < sizeof other / sizeof other[0]; k++)
+		if (!strcmp(a, other[k].opt)) {
+			ca->others[ca->nothers].kind = other[k].kind;
+			ca->others[ca->nothers++].what = v;
+			return 1;
+		}
+	if (!strcmp(a, "--spectrum")) ca->spectrum = v;
+	else if (!strcmp(a, "--peaks")) ca->peaks = v;
+	else if (!strcmp(a, "--sample")) ca->sample = v;
+	else if (!strcmp(a, "--json")) ca->json = 1;
+	else if (!strcmp(a, "--output")) ca->output = v;
+	else if (!strcmp(a, "--tables")) ca->tables_dir = v;
+	else if (!strcmp(a, "--add-table")) ca->extra[ca->nextra++] = (char *)v;
+	else if (!strcmp(a, "--phase")) {
+		if (irr_phase_parse(v, &ca->o.phase))
+			return cli_usage_error(cmd, "--phase must be condensed, solution or gas, not '%s'", v);
+	} else if (!strcmp(a, "--sampling")) {
+		if (irr_sampling_parse(v, &ca->o.sampling))
+			return cli_usage_error(cmd, "--sampling must be atr or transmission, not '%s'", v);
+	} else if (!strcmp(a, "--block") || !strcmp(a, "--max-bytes") || !strcmp(a, "--max-points")) {
+		if (cli_count_option(cmd, a, v, &ca->ro))
+			return CLI_ERROR;
+	} else {
+		return 0;
+	}
+	return 1;
+}
+
+int cli_check_begin(irr_check **c, irr_tables **t, char **solv_file, cli_check_args *ca,
+                    irr_error *err)
+{
+	int rc = cli_load_tables(t, ca->tables_dir, ca->extra, ca->nextra, solv_file, err);
+	if (rc || (rc = irr_check_create(c, *t, err)))
+		return rc;
+	ca->o.sample_id = ca->sample;
+	ca->o.solvents_file = *solv_file;
+	irr_check_set_options(*c, &ca->o);
+	return IRR_OK;
+}
+
+int cli_check_finish_inputs(irr_check *c, cli_check_args *ca, irr_error *err)
+{
+	int rc;
+	for (size_t k = 0; k < ca->nothers; k++)
+		if ((rc = irr_check_add_other(c, ca->others[k].kind, ca->others[k].what, err)))
+			return rc;
+	return cli_check_set_input(c, &ca->o, ca->spectrum, ca->peaks, &ca->ro, err);
+}
+
 /* ---- check ---- */
 
 static int exit_for(irr_verdict v)
@@ -304,95 +378,60 @@ static int list_solvents(const char *tables_dir)
 
 int cmd_check(int argc, char **argv)
 {
-	const char *structure = NULL, *structure_file = NULL, *spectrum = NULL, *peaks = NULL;
-	const char *output = NULL, *svg = NULL, *tables_dir = NULL, *request = NULL;
-	const char *sample = NULL;
-	int json = 0, list = 0, status = CLI_ERROR;
-	irr_read_options ro;
-	char **extra = NULL, *smiles_buf = NULL, *solv_file = NULL, *report = NULL, *plot = NULL;
-	size_t nextra = 0;
+	const char *structure = NULL, *structure_file = NULL, *svg = NULL, *request = NULL;
+	int list = 0, status = CLI_ERROR, taken;
+	char *smiles_buf = NULL, *solv_file = NULL, *report = NULL, *plot = NULL;
 	long structure_line = 0;
-	struct { irr_other_kind kind; const char *what; } *others = NULL;
-	size_t nothers = 0;
-	irr_check_options o;
+	cli_check_args ca;
 	irr_tables *t = NULL;
 	irr_check *c = NULL;
 	irr_error err;
-
-	irr_error_clear(&err);
-	irr_check_options_init(&o);
-	irr_read_options_init(&ro);
-	extra = calloc((size_t)argc + 1, sizeof *extra);
-	others = calloc((size_t)argc + 1, sizeof *others);
-	if (!extra || !others) {
-		free(extra);
-		free(others);
-		irr_error_set(&err, IRR_ENOMEM, "", 0, "out of memory");
-		return cli_fail(&err);
-	}
 	cli_args args = {"check", opts, argc, argv, 1, 0, NULL};
 	const cli_opt *d;
 	const char *v;
 	int next;
+
+	irr_error_clear(&err);
+	if (cli_check_args_init(&ca, argc)) {
+		cli_check_args_free(&ca);
+		irr_error_set(&err, IRR_ENOMEM, "", 0, "out of memory");
+		return cli_fail(&err);
+	}
 	while ((next = cli_opt_next(&args, &d, &v)) != CLI_ARGS_END) {
 		const char *a = d ? d->name : "";
-		if (next == CLI_ERROR) {
+		if (next == CLI_ERROR || (taken = cli_check_option("check", a, v, &ca)) == CLI_ERROR) {
 			status = CLI_ERROR;
 			goto out;
 		}
+		if (taken)
+			continue;
 		if (!strcmp(a, "--help")) {
 			help();
 			status = CLI_OK;
 			goto out;
 		} else if (!strcmp(a, "--structure")) structure = v;
 		else if (!strcmp(a, "--structure-file")) structure_file = v;
-		else if (!strcmp(a, "--spectrum")) spectrum = v;
-		else if (!strcmp(a, "--peaks")) peaks = v;
-		else if (!strcmp(a, "--starting-material")) others[nothers].kind = IRR_OTHER_STARTING_MATERIAL, others[nothers++].what = v;
-		else if (!strcmp(a, "--reagent")) others[nothers].kind = IRR_OTHER_REAGENT, others[nothers++].what = v;
-		else if (!strcmp(a, "--solvent")) others[nothers].kind = IRR_OTHER_SOLVENT, others[nothers++].what = v;
-		else if (!strcmp(a, "--sample")) sample = v;
-		else if (!strcmp(a, "--phase")) {
-			if (irr_phase_parse(v, &o.phase)) {
-				status = cli_usage_error("check", "--phase must be condensed, solution or gas, not '%s'", v);
-				goto out;
-			}
-		} else if (!strcmp(a, "--sampling")) {
-			if (irr_sampling_parse(v, &o.sampling)) {
-				status = cli_usage_error("check", "--sampling must be atr or transmission, not '%s'", v);
-				goto out;
-			}
-		} else if (!strcmp(a, "--json")) json = 1;
-		else if (!strcmp(a, "--output")) output = v;
 		else if (!strcmp(a, "--svg")) svg = v;
-		else if (!strcmp(a, "--tables")) tables_dir = v;
-		else if (!strcmp(a, "--add-table")) extra[nextra++] = (char *)v;
 		else if (!strcmp(a, "--request")) request = v;
 		else if (!strcmp(a, "--list-solvents")) list = 1;
-		else if (!strcmp(a, "--block") || !strcmp(a, "--max-bytes") || !strcmp(a, "--max-points")) {
-			if (cli_count_option("check", a, v, &ro)) {
-				status = CLI_ERROR;
-				goto out;
-			}
-		}
 	}
 	if (list) {
-		status = list_solvents(tables_dir);
+		status = list_solvents(ca.tables_dir);
 		goto out;
 	}
 	if (request) {
-		if (structure || structure_file || spectrum || peaks || nothers || svg) {
+		if (structure || structure_file || ca.spectrum || ca.peaks || ca.nothers || svg) {
 			status = cli_usage_error("check", "--request carries the whole job; give no other inputs");
 			goto out;
 		}
-		status = run_request(request, output);
+		status = run_request(request, ca.output);
 		goto out;
 	}
 	if (!!structure + !!structure_file != 1) {
 		status = cli_usage_error("check", "give one of --structure or --structure-file");
 		goto out;
 	}
-	if (!!spectrum + !!peaks != 1) {
+	if (!!ca.spectrum + !!ca.peaks != 1) {
 		status = cli_usage_error("check", "give one of --spectrum or --peaks");
 		goto out;
 	}
@@ -401,23 +440,16 @@ int cmd_check(int argc, char **argv)
 			goto fail;
 		structure = smiles_buf;
 	}
-	if (cli_load_tables(&t, tables_dir, extra, nextra, &solv_file, &err) ||
-	    irr_check_create(&c, t, &err))
+	if (cli_check_begin(&c, &t, &solv_file, &ca, &err))
 		goto fail;
-	o.sample_id = sample;
-	o.solvents_file = solv_file;
-	irr_check_set_options(c, &o);
 	if (irr_check_set_structure_named(c, structure, structure_file ? structure_file : "--structure", &err)) {
 		if (structure_file && err.line <= 0)
 			err.line = structure_line;
 		goto fail;
 	}
-	for (size_t k = 0; k < nothers; k++)
-		if (irr_check_add_other(c, others[k].kind, others[k].what, &err))
-			goto fail;
-	if (cli_check_set_input(c, &o, spectrum, peaks, &ro, &err) || irr_check_run(c, &err))
+	if (cli_check_finish_inputs(c, &ca, &err) || irr_check_run(c, &err))
 		goto fail;
-	if ((json ? irr_report_json(&report, c) : irr_report_text(&report, c))) {
+	if ((ca.json ? irr_report_json(&report, c) : irr_report_text(&report, c))) {
 		irr_error_set(&err, IRR_ENOMEM, "", 0, "cannot build the report");
 		goto fail;
 	}
@@ -431,7 +463,7 @@ int cmd_check(int argc, char **argv)
 		if (cli_write_file_atomic(svg, plot, strlen(plot), &err))
 			goto fail;
 	}
-	if (cli_write_file_atomic(output ? output : "-", report, strlen(report), &err))
+	if (cli_write_file_atomic(ca.output ? ca.output : "-", report, strlen(report), &err))
 		goto fail;
 	status = exit_for(irr_check_verdict(c));
 	goto out;
@@ -444,7 +476,6 @@ out:
 	irr_tables_free(t);
 	free(smiles_buf);
 	free(solv_file);
-	free(extra);
-	free(others);
+	cli_check_args_free(&ca);
 	return status;
 }
