@@ -183,40 +183,33 @@ static char *render_json(entry *e, size_t n, const char *sample)
 
 int cmd_rank(int argc, char **argv)
 {
-	const char *spectrum = NULL, *peaks = NULL, *output = NULL, *tables_dir = NULL;
-	const char *sample = NULL;
-	int json = 0, status = CLI_ERROR;
-	char **extra = NULL, *solv_file = NULL, *text = NULL;
-	size_t nextra = 0, ncand = 0, cap = (size_t)argc + 4096;
-	struct { irr_other_kind kind; const char *what; } *others = NULL;
-	size_t nothers = 0;
+	int status = CLI_ERROR, taken;
+	char *solv_file = NULL, *text = NULL;
+	size_t ncand = 0, cap = (size_t)argc + 4096;
 	entry *cand = NULL;
-	irr_check_options o;
+	cli_check_args ca;
 	irr_tables *t = NULL;
 	irr_check *base = NULL;
 	irr_error err;
-	irr_read_options ro;
-
-	irr_error_clear(&err);
-	irr_check_options_init(&o);
-	irr_read_options_init(&ro);
-	extra = calloc((size_t)argc + 1, sizeof *extra);
-	others = calloc((size_t)argc + 1, sizeof *others);
-	cand = calloc(cap, sizeof *cand);
-	if (!extra || !others || !cand) {
-		irr_error_set(&err, IRR_ENOMEM, "", 0, "out of memory");
-		goto fail;
-	}
 	cli_args args = {"rank", opts, argc, argv, 1, 0, NULL};
 	const cli_opt *d;
 	const char *v;
 	int next;
+
+	irr_error_clear(&err);
+	cand = calloc(cap, sizeof *cand);
+	if (cli_check_args_init(&ca, argc) || !cand) {
+		irr_error_set(&err, IRR_ENOMEM, "", 0, "out of memory");
+		goto fail;
+	}
 	while ((next = cli_opt_next(&args, &d, &v)) != CLI_ARGS_END) {
 		const char *a = d ? d->name : "";
-		if (next == CLI_ERROR) {
+		if (next == CLI_ERROR || (taken = cli_check_option("rank", a, v, &ca)) == CLI_ERROR) {
 			status = CLI_ERROR;
 			goto out;
 		}
+		if (taken)
+			continue;
 		if (!strcmp(a, "--help")) {
 			help();
 			status = CLI_OK;
@@ -230,51 +223,18 @@ int cmd_rank(int argc, char **argv)
 		} else if (!strcmp(a, "--candidates-file")) {
 			if (add_candidates_file(cand, &ncand, cap, v, &err))
 				goto fail;
-		} else if (!strcmp(a, "--spectrum")) spectrum = v;
-		else if (!strcmp(a, "--peaks")) peaks = v;
-		else if (!strcmp(a, "--starting-material")) others[nothers].kind = IRR_OTHER_STARTING_MATERIAL, others[nothers++].what = v;
-		else if (!strcmp(a, "--reagent")) others[nothers].kind = IRR_OTHER_REAGENT, others[nothers++].what = v;
-		else if (!strcmp(a, "--solvent")) others[nothers].kind = IRR_OTHER_SOLVENT, others[nothers++].what = v;
-		else if (!strcmp(a, "--sample")) sample = v;
-		else if (!strcmp(a, "--phase")) {
-			if (irr_phase_parse(v, &o.phase)) {
-				status = cli_usage_error("rank", "--phase must be condensed, solution or gas, not '%s'", v);
-				goto out;
-			}
-		} else if (!strcmp(a, "--sampling")) {
-			if (irr_sampling_parse(v, &o.sampling)) {
-				status = cli_usage_error("rank", "--sampling must be atr or transmission, not '%s'", v);
-				goto out;
-			}
-		} else if (!strcmp(a, "--json")) json = 1;
-		else if (!strcmp(a, "--output")) output = v;
-		else if (!strcmp(a, "--tables")) tables_dir = v;
-		else if (!strcmp(a, "--add-table")) extra[nextra++] = (char *)v;
-		else if (!strcmp(a, "--block") || !strcmp(a, "--max-bytes") || !strcmp(a, "--max-points")) {
-			if (cli_count_option("rank", a, v, &ro)) {
-				status = CLI_ERROR;
-				goto out;
-			}
 		}
 	}
 	if (!ncand) {
 		status = cli_usage_error("rank", "give at least one --candidate");
 		goto out;
 	}
-	if (!!spectrum + !!peaks != 1) {
+	if (!!ca.spectrum + !!ca.peaks != 1) {
 		status = cli_usage_error("rank", "give one of --spectrum or --peaks");
 		goto out;
 	}
-	if (cli_load_tables(&t, tables_dir, extra, nextra, &solv_file, &err) ||
-	    irr_check_create(&base, t, &err))
-		goto fail;
-	o.sample_id = sample;
-	o.solvents_file = solv_file;
-	irr_check_set_options(base, &o);
-	for (size_t k = 0; k < nothers; k++)
-		if (irr_check_add_other(base, others[k].kind, others[k].what, &err))
-			goto fail;
-	if (cli_check_set_input(base, &o, spectrum, peaks, &ro, &err))
+	if (cli_check_begin(&base, &t, &solv_file, &ca, &err) ||
+	    cli_check_finish_inputs(base, &ca, &err))
 		goto fail;
 	for (size_t i = 0; i < ncand; i++) {
 		char name[64];
@@ -285,12 +245,12 @@ int cmd_rank(int argc, char **argv)
 			goto fail;
 	}
 	qsort(cand, ncand, sizeof *cand, entry_cmp);
-	text = json ? render_json(cand, ncand, sample) : render_text(cand, ncand, sample);
+	text = ca.json ? render_json(cand, ncand, ca.sample) : render_text(cand, ncand, ca.sample);
 	if (!text) {
 		irr_error_set(&err, IRR_ENOMEM, "", 0, "cannot build the report");
 		goto fail;
 	}
-	if (cli_write_file_atomic(output ? output : "-", text, strlen(text), &err))
+	if (cli_write_file_atomic(ca.output ? ca.output : "-", text, strlen(text), &err))
 		goto fail;
 	status = irr_check_verdict(cand[0].c) == IRR_VERDICT_CONSISTENT ? CLI_OK : CLI_NOT_CONSISTENT;
 	goto out;
@@ -306,7 +266,6 @@ out:
 	irr_check_free(base);
 	irr_tables_free(t);
 	free(solv_file);
-	free(extra);
-	free(others);
+	cli_check_args_free(&ca);
 	return status;
 }
