@@ -28,6 +28,13 @@ int cli_usage_error(const char *cmd, const char *fmt, ...)
 #endif
 	;
 
+/* Creates an empty file beside `path` named path + ".tmp.XXXXXX", with
+ * the mode a new file would get (0666 & ~umask). *tmp holds its name
+ * (caller frees) from just before the file exists, so that a signal handler
+ * reading *tmp can remove it. Returns the open descriptor, or -1 with err
+ * filled and *tmp NULL. */
+int cli_temp_beside(const char *path, char **tmp, irr_error *err);
+
 /* Writes `data` to `path` atomically (temp file in the same folder, then
  * rename), so an error never leaves a half-written or clobbered file.
  * "-" writes to stdout. Returns IRR_OK or fills err. */

@@ -28,29 +28,22 @@ int cli_usage_error(const char *cmd, const char *fmt, ...)
 	return CLI_ERROR;
 }
 
-int cli_write_file_atomic(const char *path, const char *data, size_t len,
-                          irr_error *err)
+int cli_temp_beside(const char *path, char **tmp, irr_error *err)
 {
-	char *tmp;
-	FILE *f;
-	size_t plen;
+	size_t plen = strlen(path);
 	int fd;
-	if (!strcmp(path, "-")) {
-		if (fwrite(data, 1, len, stdout) != len || fflush(stdout) != 0)
-			return irr_error_set(err, IRR_EIO, "<stdout>", 0, "write failed: %s", strerror(errno));
-		return IRR_OK;
-	}
-	plen = strlen(path);
-	tmp = malloc(plen + 16);
-	if (!tmp)
-		return irr_error_set(err, IRR_ENOMEM, path, 0, "out of memory");
-	memcpy(tmp, path, plen);
-	memcpy(tmp + plen, ".tmp.XXXXXX", 12);
-	fd = mkstemp(tmp);
+	if (!(*tmp = malloc(plen + 16)))
+		return irr_error_set(err, IRR_ENOMEM, path, 0, "out of memory"), -1;
+	memcpy(*tmp, path, plen);
+	memcpy(*tmp + plen, ".tmp.XXXXXX", 12);
+	fd = mkstemp(*tmp);
 	if (fd < 0) {
-		irr_error_set(err, IRR_EIO, path, 0, "cannot create a temporary file beside it: %s", strerror(errno));
-		free(tmp);
-		return IRR_EIO;
+		int e = errno;
+		char *t = *tmp;
+		*tmp = NULL; /* before free: a signal handler may be reading it */
+		free(t);
+		return irr_error_set(err, IRR_EIO, path, 0, "cannot create a temporary file beside it: %s",
+		                     strerror(e)), -1;
 	}
 	{
 		/* mkstemp makes 0600; give the result the usual 0666 & ~umask. */
@@ -58,6 +51,22 @@ int cli_write_file_atomic(const char *path, const char *data, size_t len,
 		umask(um);
 		fchmod(fd, 0666 & ~um);
 	}
+	return fd;
+}
+
+int cli_write_file_atomic(const char *path, const char *data, size_t len,
+                          irr_error *err)
+{
+	char *tmp;
+	FILE *f;
+	int fd;
+	if (!strcmp(path, "-")) {
+		if (fwrite(data, 1, len, stdout) != len || fflush(stdout) != 0)
+			return irr_error_set(err, IRR_EIO, "<stdout>", 0, "write failed: %s", strerror(errno));
+		return IRR_OK;
+	}
+	if ((fd = cli_temp_beside(path, &tmp, err)) < 0)
+		return err->code;
 	f = fdopen(fd, "wb");
 	if (!f || fwrite(data, 1, len, f) != len || fflush(f) != 0 || fsync(fd) != 0) {
 		int e = errno;
