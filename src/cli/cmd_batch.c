@@ -12,7 +12,6 @@
 #include <stdlib.h>
 #include <string.h>
 #include <sys/resource.h>
-#include <sys/stat.h>
 #include <sys/types.h>
 #include <sys/wait.h>
 #include <time.h>
@@ -105,32 +104,15 @@ typedef struct output {
 
 static int output_open(output *o, const char *path, irr_error *err)
 {
-	size_t n;
 	int fd;
 	memset(o, 0, sizeof *o);
 	if (!path || !strcmp(path, "-")) {
 		o->f = stdout;
 		return IRR_OK;
 	}
-	n = strlen(path);
-	tmp_path = malloc(n + 16);
-	if (!tmp_path)
-		return irr_error_set(err, IRR_ENOMEM, path, 0, "out of memory");
-	memcpy(tmp_path, path, n);
-	memcpy(tmp_path + n, ".tmp.XXXXXX", 12);
 	catch_signals(on_signal);
-	fd = mkstemp(tmp_path);
-	if (fd < 0) {
-		int e = errno;
-		free(tmp_path);
-		tmp_path = NULL;
-		return irr_error_set(err, IRR_EIO, path, 0, "cannot create a temporary file beside it: %s", strerror(e));
-	}
-	{
-		mode_t um = umask(0);
-		umask(um);
-		fchmod(fd, 0666 & ~um);
-	}
+	if ((fd = cli_temp_beside(path, &tmp_path, err)) < 0)
+		return err->code;
 	o->f = fdopen(fd, "wb");
 	if (!o->f) {
 		close(fd);
