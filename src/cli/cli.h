@@ -28,6 +28,10 @@ int cli_usage_error(const char *cmd, const char *fmt, ...)
 #endif
 	;
 
+/* `v` with `decimals` decimals into buf (irr_format_double: '.' always);
+ * returns buf, for use inside printf arguments. */
+const char *cli_fmt(char *buf, size_t size, double v, int decimals);
+
 /* Creates an empty file beside `path` named path + ".tmp.XXXXXX", with
  * the mode a new file would get (0666 & ~umask). *tmp holds its name
  * (caller frees) from just before the file exists, so that a signal handler

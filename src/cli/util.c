@@ -1,4 +1,5 @@
-/* util.c: error printing and atomic output for the irrecon program. */
+/* util.c: error printing, number formatting and atomic output for the
+ * irrecon program. */
 #include "cli/cli.h"
 
 #include <errno.h>
@@ -15,6 +16,12 @@ int cli_fail(const irr_error *err)
 	irr_error_format(err, buf, sizeof buf);
 	fprintf(stderr, "irrecon: %s\n", buf[0] ? buf : "unknown error");
 	return CLI_ERROR;
+}
+
+const char *cli_fmt(char *buf, size_t size, double v, int decimals)
+{
+	irr_format_double(buf, size, v, decimals);
+	return buf;
 }
 
 int cli_usage_error(const char *cmd, const char *fmt, ...)
