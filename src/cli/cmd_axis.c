@@ -45,12 +45,6 @@ static void help(void)
 	printf("\nExit status: 0 axis within tolerance, 1 not (or no band resolved), 2 error.\n");
 }
 
-static const char *fmt(char *buf, size_t size, double v, int dec)
-{
-	irr_format_double(buf, size, v, dec);
-	return buf;
-}
-
 static char *render_table(const irr_axis_report *r, const char *path)
 {
 	char *buf = NULL;
@@ -65,15 +59,15 @@ static char *render_table(const irr_axis_report *r, const char *path)
 	for (size_t i = 0; i < nall; i++) {
 		const irr_axis_band *x = irr_axis_report_band(r, i);
 		char tol[40];
-		snprintf(tol, sizeof tol, "+-%s", fmt(b, sizeof b, x->tolerance, 1));
+		snprintf(tol, sizeof tol, "+-%s", cli_fmt(b, sizeof b, x->tolerance, 1));
 		if (x->status == IRR_AXIS_NOT_FOUND) {
-			fprintf(f, "  %9s  %9s  %9s  %9s  not found (%s)\n", fmt(a, sizeof a, x->reference, 1),
+			fprintf(f, "  %9s  %9s  %9s  %9s  not found (%s)\n", cli_fmt(a, sizeof a, x->reference, 1),
 			        tol, "-", "-", x->reason);
 		} else {
 			snprintf(d, sizeof d, "%s%s", x->deviation > 0 ? "+" : "",
-			         fmt(c, sizeof c, x->deviation, 1));
-			fprintf(f, "  %9s  %9s  %9s  %9s  %s\n", fmt(a, sizeof a, x->reference, 1), tol,
-			        fmt(c, sizeof c, x->found, 1), d,
+			         cli_fmt(c, sizeof c, x->deviation, 1));
+			fprintf(f, "  %9s  %9s  %9s  %9s  %s\n", cli_fmt(a, sizeof a, x->reference, 1), tol,
+			        cli_fmt(c, sizeof c, x->found, 1), d,
 			        x->status == IRR_AXIS_WITHIN ? "within" : "OUTSIDE");
 		}
 	}

@@ -52,12 +52,6 @@ static void help(void)
 	       "Exit status: 0 success, 2 error.\n");
 }
 
-static const char *fmt(char *buf, size_t size, double v, int dec)
-{
-	irr_format_double(buf, size, v, dec);
-	return buf;
-}
-
 /* Rounds for JSON so the output does not carry noise digits. */
 static double rnd(double v, double step)
 {
@@ -163,13 +157,13 @@ static char *render_table(const irr_spectrum *s, const irr_peaklist *pl, const c
 		fprintf(f, "  title: %.70s\n", irr_spectrum_title(s));
 	if (s) {
 		fprintf(f, "  %zu points, %s-%s cm-1, %s, %s as absorbance\n",
-		        irr_spectrum_points(s), fmt(a, sizeof a, lo, 1), fmt(b, sizeof b, hi, 1),
+		        irr_spectrum_points(s), cli_fmt(a, sizeof a, lo, 1), cli_fmt(b, sizeof b, hi, 1),
 		        irr_spectrum_source_format(s), irr_yunits_name(irr_spectrum_source_y_units(s)));
 		for (size_t i = 0; i < irr_spectrum_warning_count(s); i++)
 			fprintf(f, "  warning: %s\n", irr_spectrum_warning(s, i));
-		fprintf(f, "  noise %s A; ", fmt(a, sizeof a, irr_peaklist_noise(pl), 5));
+		fprintf(f, "  noise %s A; ", cli_fmt(a, sizeof a, irr_peaklist_noise(pl), 5));
 	} else {
-		fprintf(f, "  peak list, range %s to %s cm-1; ", fmt(a, sizeof a, lo, 1), fmt(b, sizeof b, hi, 1));
+		fprintf(f, "  peak list, range %s to %s cm-1; ", cli_fmt(a, sizeof a, lo, 1), cli_fmt(b, sizeof b, hi, 1));
 	}
 	fprintf(f, "%zu band%s (%zu shoulder%s, %zu broad, %zu saturated)\n\n", n, n == 1 ? "" : "s",
 	        nsh, nsh == 1 ? "" : "s", nbr, nsat);
@@ -181,18 +175,18 @@ static char *render_table(const irr_spectrum *s, const irr_peaklist *pl, const c
 			const irr_peak *p = irr_peaklist_get(pl, i);
 			char notes[200] = "";
 			if (p->saturated)
-				snprintf(notes, sizeof notes, "saturated %s-%s", fmt(c, sizeof c, p->low, 0),
-				         fmt(d, sizeof d, p->high, 0));
+				snprintf(notes, sizeof notes, "saturated %s-%s", cli_fmt(c, sizeof c, p->low, 0),
+				         cli_fmt(d, sizeof d, p->high, 0));
 			if (p->shoulder)
 				snprintf(notes + strlen(notes), sizeof notes - strlen(notes), "%sshoulder",
 				         notes[0] ? ", " : "");
 			if (p->broad)
 				snprintf(notes + strlen(notes), sizeof notes - strlen(notes), "%sbroad",
 				         notes[0] ? ", " : "");
-			fprintf(f, "  %9s %9s %9s %7s  %-7s %s\n", fmt(a, sizeof a, p->position, 1),
-			        p->height > 0 ? fmt(b, sizeof b, p->height, 4) : "-",
-			        p->area > 0 ? fmt(c, sizeof c, p->area, 3) : "-",
-			        p->fwhm > 0 ? fmt(d, sizeof d, p->fwhm, 1) : "-",
+			fprintf(f, "  %9s %9s %9s %7s  %-7s %s\n", cli_fmt(a, sizeof a, p->position, 1),
+			        p->height > 0 ? cli_fmt(b, sizeof b, p->height, 4) : "-",
+			        p->area > 0 ? cli_fmt(c, sizeof c, p->area, 3) : "-",
+			        p->fwhm > 0 ? cli_fmt(d, sizeof d, p->fwhm, 1) : "-",
 			        irr_intensity_name(p->intensity), notes);
 		}
 	}

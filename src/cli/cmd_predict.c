@@ -91,12 +91,6 @@ static int read_structure_file(const char *path, char **smiles, char **name,
 	return irr_error_set(err, IRR_EINPUT, path, lineno ? lineno : 0, "no SMILES in structure file");
 }
 
-static const char *num(char *buf, size_t size, double v)
-{
-	irr_format_double(buf, size, v, 0);
-	return buf;
-}
-
 /* "ketone (conjugated, ring 6)": the key's trade name and the context that
  * moves its bands. */
 static void group_title(char *buf, size_t size, const irr_group *g, const irr_tables *t)
@@ -224,8 +218,8 @@ static void print_text(FILE *out, const irr_molecule *m, const char *title,
 		         bd->group_index + 1);
 		{
 			char win[72];
-			snprintf(win, sizeof win, "%s-%s", num(a, sizeof a, bd->low), num(b, sizeof b, bd->high));
-			fprintf(out, "  %-9s %5s %c %-7s %3s ", win, num(d, sizeof d, bd->typical),
+			snprintf(win, sizeof win, "%s-%s", cli_fmt(a, sizeof a, bd->low, 0), cli_fmt(b, sizeof b, bd->high, 0));
+			fprintf(out, "  %-9s %5s %c %-7s %3s ", win, cli_fmt(d, sizeof d, bd->typical, 0),
 			        intensity_letter(bd->intensity),
 			        bd->shape == IRR_SHAPE_VERY_BROAD ? "v.broad" : irr_shape_name(bd->shape),
 			        (irr_format_double(b, sizeof b, bd->weight, 1), b));
