@@ -255,14 +255,15 @@ static double select_kth(double *a, size_t n, size_t k)
 		if (rhi < SELECT_SAMPLE - 1)
 			hi = rlo > 0 ? select_small(smp + rlo, SELECT_SAMPLE - rlo, rhi - rlo)
 			             : select_small(smp, SELECT_SAMPLE, rhi);
+		/* Without branches (their outcome is a coin toss here): a[i]
+		 * and a[m] always trade places, and m moves on only past a value
+		 * inside, so a[0..m-1] are those and a stays a permutation. */
 		for (size_t i = 0; i < n; i++) {
-			double v = a[i];
-			if (v < lo) {
-				below++;
-			} else if (v <= hi) {
-				a[i] = a[m];
-				a[m++] = v;
-			}
+			double v = a[i], t = a[m];
+			below += v < lo;
+			a[m] = v;
+			a[i] = t;
+			m += (v >= lo) & (v <= hi);
 		}
 		if (below <= k && k < below + m)
 			return select_small(a, m, k - below);
@@ -291,14 +292,15 @@ static double median_near(double *a, size_t n, double near)
 	if (near > 0.0) {
 		double lo = near / 1.5, hi = near * 1.5;
 		size_t below = 0, m = 0;
+		/* Without branches (their outcome is a coin toss here): a[i]
+		 * and a[m] always trade places, and m moves on only past a value
+		 * inside, so a[0..m-1] are those and a stays a permutation. */
 		for (size_t i = 0; i < n; i++) {
-			double v = a[i];
-			if (v < lo) {
-				below++;
-			} else if (v <= hi) {
-				a[i] = a[m];
-				a[m++] = v;
-			}
+			double v = a[i], t = a[m];
+			below += v < lo;
+			a[m] = v;
+			a[i] = t;
+			m += (v >= lo) & (v <= hi);
 		}
 		if (below <= k && k < below + m)
 			return select_small(a, m, k - below);
@@ -385,7 +387,8 @@ static void prominence_bases(const double *c, size_t n, double *lb, double *rb,
 		double a = c[i - 1], v = c[i], b = c[i + 1];
 		tv[m] = v;
 		ti[m] = i;
-		m += !((a < v && v < b) || (a > v && v > b));
+		/* Bitwise, not short-circuit: no branch to mispredict. */
+		m += !(((a < v) & (v < b)) | ((a > v) & (v > b)));
 	}
 	tv[m] = c[n - 1];
 	ti[m++] = n - 1;
@@ -930,7 +933,7 @@ checked:
 		 * measured range cannot be measured anyway. */
 		size_t edge = half > 1 ? (size_t)half : 1;
 		for (size_t i = edge; i + edge < n; i++) {
-			if (!(w.c[i] > w.c[i - 1] && w.c[i] >= w.c[i + 1]))
+			if (!((w.c[i] > w.c[i - 1]) & (w.c[i] >= w.c[i + 1])))
 				continue;
 			double base = w.lb[i] > w.rb[i] ? w.lb[i] : w.rb[i];
 			double prom = w.c[i] - base;
@@ -1133,7 +1136,7 @@ checked:
 				nd2[i] = -w.d2[i];
 			prominence_bases(nd2, n, w.lb, w.rb, w.tv, w.stk2, w.base, w.smin);
 			for (size_t i = 1; i + 1 < n; i++) {
-				if (!(nd2[i] > nd2[i - 1] && nd2[i] >= nd2[i + 1] && nd2[i] > 0.0))
+				if (!((nd2[i] > nd2[i - 1]) & (nd2[i] >= nd2[i + 1]) & (nd2[i] > 0.0)))
 					continue;
 				double base = w.lb[i] > w.rb[i] ? w.lb[i] : w.rb[i];
 				if (nd2[i] - base < o->shoulder_factor * o->min_snr * D2NOISE_AT(w, i))
