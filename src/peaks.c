@@ -374,21 +374,26 @@ static void hull_subtract(const double *x, const double *y, const double *raw, s
  * higher than a maximum, if skipped, lies on a slope whose far end is
  * higher still, with nothing lower in between. lb and rb are written only
  * where they are defined that way: at the points not skipped, which
- * include every maximum. tv, ti, sval and smin are scratch of n. */
-static void prominence_bases(const double *c, size_t n, double *lb, double *rb,
-                             double *tv, size_t *ti, double *sval, double *smin)
+ * include every maximum. tv, ti, sval and smin are scratch of n. The
+ * interior maxima, ascending, go to mx; their count is returned. */
+static size_t prominence_bases(const double *c, size_t n, double *lb, double *rb,
+                               double *tv, size_t *ti, double *sval, double *smin,
+                               size_t *mx)
 {
-	size_t m = 0, top = 0;
+	size_t m = 0, top = 0, nmx = 0;
 	/* The points that matter, once for both directions: tv their values,
-	 * ti their indices (n >= 2). */
+	 * ti their indices (n >= 2); and on the way the maxima (c[i-1] < c[i]
+	 * >= c[i+1]) for the caller. Bitwise, not short-circuit: no branch to
+	 * mispredict. */
 	tv[m] = c[0];
 	ti[m++] = 0;
 	for (size_t i = 1; i + 1 < n; i++) {
 		double a = c[i - 1], v = c[i], b = c[i + 1];
 		tv[m] = v;
 		ti[m] = i;
-		/* Bitwise, not short-circuit: no branch to mispredict. */
+		mx[nmx] = i;
 		m += !(((a < v) & (v < b)) | ((a > v) & (v > b)));
+		nmx += (a < v) & !(v < b);
 	}
 	tv[m] = c[n - 1];
 	ti[m++] = n - 1;
@@ -417,6 +422,7 @@ static void prominence_bases(const double *c, size_t n, double *lb, double *rb,
 		smin[top] = mn;
 		top++;
 	}
+	return nmx;
 }
 
 /* Three-point interpolation of an extremum at i: offset (-0.5..0.5 points)
@@ -490,7 +496,7 @@ struct work {
 	double *s, *base, *c, *r, *d2, *lb, *rb, *smin, *scratch, *tv;
 	double *blk;         /* per block: raw, d2 levels, then their medians */
 	double *bsn, *bsd;   /* per block noise sd (raw) and of the 2nd derivative */
-	size_t *stk, *stk2;
+	size_t *stk, *stk2, *mx;
 	unsigned char *keep;
 	unsigned char *satm; /* 1: in a saturated range; 2: within guard of one */
 	void *block;
@@ -688,7 +694,7 @@ checked:
 	{
 		size_t nd = uniform ? 10 : 12, bytes;
 		nb = (n + NOISE_BLOCK - 1) / NOISE_BLOCK;
-		bytes = (nd * n + 4 * nb) * sizeof(double) + 2 * n * sizeof(size_t) + 2 * n;
+		bytes = (nd * n + 4 * nb) * sizeof(double) + 3 * n * sizeof(size_t) + 2 * n;
 		w.block = malloc(bytes);
 		if (!w.block)
 			return irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
@@ -712,7 +718,8 @@ checked:
 		w.bsd = d; d += nb;
 		w.stk = (size_t *)d;
 		w.stk2 = w.stk + n;
-		w.keep = (unsigned char *)(w.stk2 + n);
+		w.mx = w.stk2 + n;
+		w.keep = (unsigned char *)(w.mx + n);
 		w.satm = w.keep + n;
 	}
 	if (uniform) {
@@ -924,7 +931,8 @@ checked:
 	}
 
 	/* Maxima by prominence. */
-	prominence_bases(w.c, n, w.lb, w.rb, w.tv, w.stk2, w.base, w.smin); /* base: free now */
+	size_t nmx = prominence_bases(w.c, n, w.lb, w.rb, w.tv, w.stk2, w.base, w.smin, w.mx);
+	/* (base: free now) */
 	{
 		double hmax = 0.0;
 		memset(w.keep, 0, n);
@@ -932,8 +940,9 @@ checked:
 		 * polynomial extrapolates, and a band cut off by the end of the
 		 * measured range cannot be measured anyway. */
 		size_t edge = half > 1 ? (size_t)half : 1;
-		for (size_t i = edge; i + edge < n; i++) {
-			if (!((w.c[i] > w.c[i - 1]) & (w.c[i] >= w.c[i + 1])))
+		for (size_t k = 0; k < nmx; k++) {
+			size_t i = w.mx[k];
+			if (i < edge || i + edge >= n)
 				continue;
 			double base = w.lb[i] > w.rb[i] ? w.lb[i] : w.rb[i];
 			double prom = w.c[i] - base;
@@ -1134,9 +1143,11 @@ checked:
 			size_t *sig = w.stk + nk, ns = 0; /* significant lobes, after kidx */
 			for (size_t i = 0; i < n; i++)
 				nd2[i] = -w.d2[i];
-			prominence_bases(nd2, n, w.lb, w.rb, w.tv, w.stk2, w.base, w.smin);
-			for (size_t i = 1; i + 1 < n; i++) {
-				if (!((nd2[i] > nd2[i - 1]) & (nd2[i] >= nd2[i + 1]) & (nd2[i] > 0.0)))
+			size_t nmx2 = prominence_bases(nd2, n, w.lb, w.rb, w.tv, w.stk2, w.base,
+			                               w.smin, w.mx);
+			for (size_t k = 0; k < nmx2; k++) {
+				size_t i = w.mx[k];
+				if (!(nd2[i] > 0.0))
 					continue;
 				double base = w.lb[i] > w.rb[i] ? w.lb[i] : w.rb[i];
 				if (nd2[i] - base < o->shoulder_factor * o->min_snr * D2NOISE_AT(w, i))
