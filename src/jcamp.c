@@ -835,8 +835,10 @@ static int decode_xydata(decoded *d, const record *r, size_t expect, size_t limi
 					/* The sign as a factor of +-1 (exact, -0 included):
 					 * signs alternate at random, a branch on them would
 					 * be mispredicted half the time. */
-					double v = (double)(int64_t)m *
-					           (1.0 - 2.0 * (double)((kc == K_DIFN) | (kc == K_SQZN)));
+					static const double sign[16] = {
+						[K_SQZN >> 4] = -1.0, [K_DIFN >> 4] = -1.0, [K_SQZP >> 4] = 1.0,
+						[K_DIFP >> 4] = 1.0};
+					double v = (double)(int64_t)m * sign[kc >> 4];
 					if (kc == K_DIFP || kc == K_DIFN) {
 						ldif = v;
 						lst += ldif;
