@@ -193,40 +193,44 @@ void irr_peaklist_saturated_range(const irr_peaklist *pl, size_t i,
 
 /* k-th smallest of a[0..n-1] (reorders a): Hoare's FIND (C. A. R. Hoare,
  * Commun. ACM 4 (1961) 321), expected O(n), the pivot the median of the
- * first, middle and last values (fewer passes on sorted stretches). */
+ * first, middle and last values. Each step splits the range three ways
+ * (below, equal to, above the pivot; repeated values cannot make it
+ * quadratic) in two passes without data-dependent branches: on noise the
+ * comparisons are coin tosses, which a processor mispredicts half the
+ * time. Every value moved trades places with another, so a stays a
+ * permutation. */
 static double select_small(double *a, size_t n, size_t k)
 {
-	size_t lo = 0, hi = n - 1;
-	while (lo < hi) {
-		double p0 = a[lo], p1 = a[lo + (hi - lo) / 2], p2 = a[hi], pivot;
+	size_t lo = 0, hi = n; /* the k-th is in a[lo..hi-1] */
+	while (hi - lo > 1) {
+		double p0 = a[lo], p1 = a[lo + (hi - lo) / 2], p2 = a[hi - 1], pivot;
+		size_t lt = lo, le;
 		if (p0 > p1) {
 			double t = p0;
 			p0 = p1;
 			p1 = t;
 		}
 		pivot = p2 < p0 ? p0 : p2 > p1 ? p1 : p2;
-		size_t i = lo, j = hi;
-		while (i <= j) {
-			while (a[i] < pivot)
-				i++;
-			while (a[j] > pivot)
-				j--;
-			if (i <= j) {
-				double t = a[i];
-				a[i] = a[j];
-				a[j] = t;
-				i++;
-				if (j == 0)
-					break;
-				j--;
-			}
+		for (size_t j = lo; j < hi; j++) {
+			double v = a[j];
+			a[j] = a[lt];
+			a[lt] = v;
+			lt += v < pivot;
 		}
-		if (k <= j)
-			hi = j;
-		else if (k >= i)
-			lo = i;
-		else
-			return a[k];
+		if (k < lt) {
+			hi = lt;
+			continue;
+		}
+		le = lt;
+		for (size_t j = lt; j < hi; j++) {
+			double v = a[j];
+			a[j] = a[le];
+			a[le] = v;
+			le += v <= pivot;
+		}
+		if (k < le)
+			return pivot;
+		lo = le;
 	}
 	return a[k];
 }
