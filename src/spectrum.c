@@ -697,6 +697,7 @@ static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *er
 	unsigned char *sat = NULL;
 	irr_yunits u;
 	int rc = IRR_OK, transmittance = 0;
+	size_t nsat_pts = 0;
 
 	/* Axis: cm-1 = 1e4 / um, then ascending. */
 	if (s->x_micrometers) {
@@ -776,12 +777,11 @@ static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *er
 		 * floor), or the minimum is clipped flat. */
 		double tmin = y[0], tminpos = HUGE_VAL, ceiling;
 		for (size_t i = 0; i < n; i++) {
-			if (y[i] < tmin)
-				tmin = y[i];
-			if (y[i] > 0 && y[i] < tminpos)
-				tminpos = y[i];
-			if (y[i] <= T_FLOOR)
-				sat[i] = 1;
+			double v = y[i];
+			tmin = v < tmin ? v : tmin;
+			tminpos = (v > 0) & (v < tminpos) ? v : tminpos;
+			sat[i] = v <= T_FLOOR;
+			nsat_pts += v <= T_FLOOR;
 		}
 		if (tminpos == HUGE_VAL) {
 			free(sat);
@@ -792,9 +792,11 @@ static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *er
 			unsigned char *m = calloc(n, 1);
 			if (!m)
 				goto nomem;
-			if (mark_flat_extreme(y, n, tmin, m) >= CLIP_MIN_POINTS)
+			if (mark_flat_extreme(y, n, tmin, m) >= CLIP_MIN_POINTS) {
 				for (size_t i = 0; i < n; i++)
 					sat[i] |= m[i];
+				nsat_pts = 1;
+			}
 			free(m);
 		}
 		/* T <= 0 has no absorbance; such points get the highest measured
@@ -811,13 +813,16 @@ static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *er
 			unsigned char *m = calloc(n, 1);
 			if (!m)
 				goto nomem;
-			if (mark_flat_extreme(y, n, amax, m) >= CLIP_MIN_POINTS)
+			if (mark_flat_extreme(y, n, amax, m) >= CLIP_MIN_POINTS) {
 				memcpy(sat, m, n);
+				nsat_pts = 1;
+			}
 			free(m);
 		}
 	}
 	s->nsat = 0;
-	for (size_t i = 0; i < n;) {
+	/* nsat_pts: whether any point was marked (the scan finds nothing else). */
+	for (size_t i = 0; nsat_pts && i < n;) {
 		size_t j = i;
 		double lo, hi;
 		if (!sat[i]) {
