@@ -392,12 +392,16 @@ static size_t prominence_bases(const double *c, size_t n, double *lb, double *rb
 	tv[m] = c[0];
 	ti[m++] = 0;
 	for (size_t i = 1; i + 1 < n; i++) {
-		double a = c[i - 1], v = c[i], b = c[i + 1];
+		/* Strictly monotone through v: both steps of one strict sign.
+		 * For finite values v - a > 0 exactly when v > a; a product
+		 * that underflows to 0 (or overflows to NaN) only keeps a point
+		 * that could have been skipped, which changes nothing. */
+		double v = c[i], up = v - c[i - 1], next = c[i + 1] - v;
 		tv[m] = v;
 		ti[m] = i;
 		mx[nmx] = i;
-		m += !(((a < v) & (v < b)) | ((a > v) & (v > b)));
-		nmx += (a < v) & !(v < b);
+		m += !(up * next > 0.0);
+		nmx += (up > 0.0) & !(next > 0.0);
 	}
 	tv[m] = c[n - 1];
 	ti[m++] = n - 1;
