@@ -282,13 +282,16 @@ static double median_inplace(double *a, size_t n)
 	return select_kth(a, n, n / 2);
 }
 
-/* The median of a[0..n-1] (reorders a) when a neighbouring block's median
- * `near` is known: noise levels change little from block to block, so
- * [near/1.5, near*1.5] likely holds the median; one pass counts what lies
- * below and gathers what lies inside, and only those are searched. When
- * the guess misses, a is a permutation of the input and the plain search
- * runs on all of it. The value is the same either way. */
-static double median_near(double *a, size_t n, double near)
+/* The median of src[0..n-1] (of |src| with absval; src is not changed,
+ * scratch holds n) when a neighbouring block's median `near` is known:
+ * noise levels change little from block to block, so [near/1.5,
+ * near*1.5] likely holds the median. One pass counts what lies below and
+ * copies what lies inside to scratch (branch-free: the outcome of each
+ * comparison is a coin toss), and only those are searched. When the guess
+ * misses (or there is none), all of src is copied and searched. The value
+ * is the same either way. */
+static double median_near(const double *src, size_t n, int absval, double near,
+                          double *scratch)
 {
 	if (n == 0)
 		return 0.0;
@@ -296,35 +299,37 @@ static double median_near(double *a, size_t n, double near)
 	if (near > 0.0) {
 		double lo = near / 1.5, hi = near * 1.5;
 		size_t below = 0, m = 0;
-		/* Without branches (their outcome is a coin toss here): a[i]
-		 * and a[m] always trade places, and m moves on only past a value
-		 * inside, so a[0..m-1] are those and a stays a permutation. */
 		for (size_t i = 0; i < n; i++) {
-			double v = a[i], t = a[m];
+			double v = absval ? fabs(src[i]) : src[i];
+			scratch[m] = v;
 			below += v < lo;
-			a[m] = v;
-			a[i] = t;
 			m += (v >= lo) & (v <= hi);
 		}
 		if (below <= k && k < below + m)
-			return select_small(a, m, k - below);
+			return select_small(scratch, m, k - below);
 	}
-	return select_small(a, n, k);
+	for (size_t i = 0; i < n; i++)
+		scratch[i] = absval ? fabs(src[i]) : src[i];
+	return select_small(scratch, n, k);
 }
 
 /* Robust sd of white noise from second differences: d = y[i-1]-2y[i]+y[i+1]
  * has sd sigma*sqrt(6); MAD*1.4826 estimates the sd of a normal sample.
  * dd[i] holds |d| centred on i (computed once for the global level and all
- * blocks); the median of dd[a..e-1] is taken on a copy in scratch. */
+ * blocks); the median of dd[a..e-1] is taken in scratch. With `near`, a
+ * neighbouring block's median guides the search, and this one's is left
+ * there for the next. */
 static double noise_of(const double *dd, size_t a, size_t e, double *scratch, double *near)
 {
 	double med;
 	if (e <= a)
 		return 0.0;
-	memcpy(scratch, dd + a, (e - a) * sizeof *scratch);
-	med = near ? median_near(scratch, e - a, *near) : median_inplace(scratch, e - a);
-	if (near)
-		*near = med;
+	if (near) {
+		med = *near = median_near(dd + a, e - a, 0, *near, scratch);
+	} else {
+		memcpy(scratch, dd + a, (e - a) * sizeof *scratch);
+		med = median_inplace(scratch, e - a);
+	}
 	return 1.4826 * med / sqrt(6.0);
 }
 
@@ -870,14 +875,12 @@ checked:
 		if (sigma <= 0.0)
 			sigma = 1e-12;
 		for (size_t b = 0; b < nb; b++) {
-			size_t a = b * NOISE_BLOCK, e = a + NOISE_BLOCK, m = 0;
+			size_t a = b * NOISE_BLOCK, e = a + NOISE_BLOCK;
 			if (e > n)
 				e = n;
 			double sb = bn[b];
 			bn[b] = sb > sigma ? sb : sigma;
-			for (size_t i = a; i < e; i++)
-				w.scratch[m++] = fabs(w.d2[i]);
-			near2 = median_near(w.scratch, m, near2);
+			near2 = median_near(w.d2 + a, e - a, 1, near2, w.scratch);
 			sb = 1.4826 * near2;
 			bd[b] = sb > sigma * gain2 ? sb : sigma * gain2;
 			if (bn[b] < bd[b] / gain2)
