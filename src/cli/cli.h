@@ -39,6 +39,13 @@ const char *cli_fmt(char *buf, size_t size, double v, int decimals);
  * filled and *tmp NULL. */
 int cli_temp_beside(const char *path, char **tmp, irr_error *err);
 
+/* First SMILES in a structure file: the first token of the first line that
+ * is not blank and not a '#' comment; the rest of that line, trimmed, is the
+ * compound's name (*name may be ""; pass NULL when not wanted); *line_no
+ * (may be NULL) gets its line. Caller frees *out and *name. */
+int cli_read_structure_file(char **out, char **name, long *line_no, const char *path,
+                            irr_error *err);
+
 /* Writes `data` to `path` atomically (temp file in the same folder, then
  * rename), so an error never leaves a half-written or clobbered file.
  * "-" writes to stdout. Returns IRR_OK or fills err. */

@@ -65,47 +65,6 @@ static void help(void)
 
 /* ---- Shared with rank ---- */
 
-int cli_read_structure_file(char **out, long *line_no, const char *path, irr_error *err)
-{
-	FILE *f = fopen(path, "rb");
-	char line[65536];
-	long ln = 0;
-	*out = NULL;
-	if (!f)
-		return irr_error_set(err, IRR_EIO, path, 0, "cannot open: %s", strerror(errno));
-	while (fgets(line, sizeof line, f)) {
-		char *p = line, *e;
-		ln++;
-		if (!strchr(line, '\n') && !feof(f)) {
-			fclose(f);
-			return irr_error_set(err, IRR_ELIMIT, path, ln, "line longer than 64 KiB");
-		}
-		if (ln == 1 && (unsigned char)p[0] == 0xEF && (unsigned char)p[1] == 0xBB &&
-		    (unsigned char)p[2] == 0xBF)
-			p += 3;
-		while (*p == ' ' || *p == '\t')
-			p++;
-		if (!*p || *p == '\n' || *p == '\r' || *p == '#')
-			continue;
-		e = p + strcspn(p, " \t\r\n");
-		*e = '\0';
-		for (char *q = p; *q; q++)
-			if ((unsigned char)*q < 0x20 || (unsigned char)*q >= 0x7f) {
-				fclose(f);
-				return irr_error_set(err, IRR_EINPUT, path, ln,
-				                     "not a SMILES (control or non-ASCII byte)");
-			}
-		fclose(f);
-		if (!(*out = strdup(p)))
-			return irr_error_set(err, IRR_ENOMEM, path, 0, "out of memory");
-		if (line_no)
-			*line_no = ln;
-		return IRR_OK;
-	}
-	fclose(f);
-	return irr_error_set(err, IRR_EINPUT, path, ln, "no structure (SMILES) in the file");
-}
-
 int cli_load_tables(irr_tables **out, const char *dir, char **extra, size_t nextra,
                     char **solvents_file, irr_error *err)
 {
@@ -436,7 +395,7 @@ int cmd_check(int argc, char **argv)
 		goto out;
 	}
 	if (structure_file) {
-		if (cli_read_structure_file(&smiles_buf, &structure_line, structure_file, &err))
+		if (cli_read_structure_file(&smiles_buf, NULL, &structure_line, structure_file, &err))
 			goto fail;
 		structure = smiles_buf;
 	}

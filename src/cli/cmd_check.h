@@ -1,14 +1,9 @@
-/* cmd_check.h: what `check` and `rank` share: reading the structure file,
- * loading tables, reading and hashing the measured input. */
+/* cmd_check.h: what `check` and `rank` share: loading tables, reading and
+ * hashing the measured input. */
 #ifndef IRRECON_CMD_CHECK_H
 #define IRRECON_CMD_CHECK_H
 
 #include "irrecon/reconcile.h"
-
-/* First SMILES in a file: the first token of the first line that is not
- * blank and not a '#' comment; *line_no (may be NULL) gets its line.
- * Caller frees *out. */
-int cli_read_structure_file(char **out, long *line_no, const char *path, irr_error *err);
 
 /* Loads tables from `dir` (NULL: default) plus extra files. When `dir` has
  * solvents/solvents.json, *solvents_file is set to it (caller frees). */

@@ -49,48 +49,6 @@ static void help(void)
 	       "Exit status: 0 success, 2 error.\n");
 }
 
-/* Reads the first SMILES of a structure file: the first line that is not
- * blank or a '#' comment; its first word is the SMILES, the rest a name. */
-static int read_structure_file(const char *path, char **smiles, char **name,
-                               long *line_out, irr_error *err)
-{
-	FILE *f = fopen(path, "rb");
-	char *line = NULL;
-	size_t cap = 0;
-	ssize_t len;
-	long lineno = 0;
-	*smiles = *name = NULL;
-	if (!f)
-		return irr_error_set(err, IRR_EIO, path, 0, "cannot open structure file: %s", strerror(errno));
-	while ((len = getline(&line, &cap, f)) >= 0) {
-		char *p = line, *end;
-		lineno++;
-		if ((size_t)len != strlen(line)) {
-			free(line);
-			fclose(f);
-			return irr_error_set(err, IRR_EINPUT, path, lineno, "NUL byte in structure file");
-		}
-		while (*p == ' ' || *p == '\t')
-			p++;
-		if (!*p || *p == '\n' || *p == '\r' || *p == '#')
-			continue;
-		end = p + strcspn(p, " \t\r\n");
-		*smiles = strndup(p, (size_t)(end - p));
-		p = end + strspn(end, " \t");
-		end = p + strcspn(p, "\r\n");
-		*name = strndup(p, (size_t)(end - p));
-		*line_out = lineno;
-		free(line);
-		fclose(f);
-		if (!*smiles || !*name)
-			return irr_error_set(err, IRR_ENOMEM, path, 0, "out of memory");
-		return IRR_OK;
-	}
-	free(line);
-	fclose(f);
-	return irr_error_set(err, IRR_EINPUT, path, lineno ? lineno : 0, "no SMILES in structure file");
-}
-
 /* "ketone (conjugated, ring 6)": the key's trade name and the context that
  * moves its bands. */
 static void group_title(char *buf, size_t size, const irr_group *g, const irr_tables *t)
@@ -373,7 +331,7 @@ int cmd_predict(int argc, char **argv)
 		return cli_usage_error("predict", "give a SMILES or --structure-file FILE (one of them)");
 
 	if (structure_file) {
-		if (read_structure_file(structure_file, &file_smiles, &file_name, &file_line, &err))
+		if (cli_read_structure_file(&file_smiles, &file_name, &file_line, structure_file, &err))
 			goto fail;
 	}
 	if (irr_tables_load(&t, tables_dir, extra, n_extra, &err))

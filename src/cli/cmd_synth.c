@@ -130,42 +130,6 @@ static int parse_component(char *s, irr_synth_component *c)
 	return 0;
 }
 
-/* --structure-file: the first non-blank line that is not a '#' comment;
- * its first word. --structure: the argument itself. */
-static int structure_arg(const char *arg, int is_file, char **smiles, irr_error *err)
-{
-	FILE *f;
-	char line[8192];
-	long ln = 0;
-	*smiles = NULL;
-	if (!is_file) {
-		*smiles = strdup(arg);
-		return *smiles ? IRR_OK : irr_error_set(err, IRR_ENOMEM, "", 0, "out of memory");
-	}
-	f = fopen(arg, "r");
-	if (!f)
-		return irr_error_set(err, IRR_EIO, arg, 0, "cannot open: %s", strerror(errno));
-	while (fgets(line, sizeof line, f)) {
-		char *p = line, *e;
-		ln++;
-		if (!strchr(line, '\n') && !feof(f)) {
-			fclose(f);
-			return irr_error_set(err, IRR_EINPUT, arg, ln, "line too long for a SMILES");
-		}
-		while (*p == ' ' || *p == '\t')
-			p++;
-		if (!*p || *p == '\n' || *p == '\r' || *p == '#')
-			continue;
-		e = p + strcspn(p, " \t\r\n");
-		*e = '\0';
-		fclose(f);
-		*smiles = strdup(p);
-		return *smiles ? IRR_OK : irr_error_set(err, IRR_ENOMEM, "", 0, "out of memory");
-	}
-	fclose(f);
-	return irr_error_set(err, IRR_EINPUT, arg, ln, "no SMILES in the file");
-}
-
 static int ends_with(const char *s, const char *suffix)
 {
 	size_t a = strlen(s), b = strlen(suffix);
@@ -321,8 +285,12 @@ int cmd_synth(int argc, char **argv)
 	if (structure) {
 		if (sum >= 1.0)
 			return cli_usage_error(CMD, "the component shares sum to %g: nothing left for --structure", sum);
-		if (structure_arg(structure, structure_is_file, &smiles, &err) < 0)
-			return cli_fail(&err);
+		if (structure_is_file) {
+			if (cli_read_structure_file(&smiles, NULL, NULL, structure, &err) < 0)
+				return cli_fail(&err);
+		} else if (!(smiles = strdup(structure))) {
+			return cli_usage_error(CMD, "out of memory");
+		}
 		/* The main compound first, so its name leads error messages. */
 		memmove(comp + 1, comp, ncomp * sizeof *comp);
 		comp[0].smiles = smiles;

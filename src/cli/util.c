@@ -94,3 +94,71 @@ int cli_write_file_atomic(const char *path, const char *data, size_t len,
 	free(tmp);
 	return IRR_OK;
 }
+
+int cli_read_structure_file(char **out, char **name, long *line_no, const char *path,
+                            irr_error *err)
+{
+	FILE *f = fopen(path, "rb");
+	char *line = NULL, *nm = NULL;
+	size_t cap = 0;
+	ssize_t len;
+	long ln = 0;
+	int rc;
+	*out = NULL;
+	if (name)
+		*name = NULL;
+	if (!f)
+		return irr_error_set(err, IRR_EIO, path, 0, "cannot open: %s", strerror(errno));
+	while ((len = getline(&line, &cap, f)) >= 0) {
+		char *p = line, *e;
+		ln++;
+		/* A UTF-16 file or a binary one shows itself by NUL bytes. */
+		if ((size_t)len != strlen(line)) {
+			rc = irr_error_set(err, IRR_EINPUT, path, ln, "NUL byte: not a text file (UTF-16?)");
+			goto done;
+		}
+		if (len > 65536) {
+			rc = irr_error_set(err, IRR_ELIMIT, path, ln, "line longer than 64 KiB");
+			goto done;
+		}
+		if (ln == 1 && !strncmp(p, "\xEF\xBB\xBF", 3)) /* UTF-8 byte-order mark */
+			p += 3;
+		p += strspn(p, " \t");
+		if (!*p || *p == '\n' || *p == '\r' || *p == '#')
+			continue;
+		e = p + strcspn(p, " \t\r\n");
+		if (name) {
+			/* The rest of the line, trimmed, names the compound. */
+			char *n = e + strspn(e, " \t"), *ne = n + strcspn(n, "\r\n");
+			while (ne > n && (ne[-1] == ' ' || ne[-1] == '\t'))
+				ne--;
+			if (!(nm = strndup(n, (size_t)(ne - n)))) {
+				rc = irr_error_set(err, IRR_ENOMEM, path, 0, "out of memory");
+				goto done;
+			}
+		}
+		*e = '\0';
+		for (char *q = p; *q; q++)
+			if ((unsigned char)*q < 0x20 || (unsigned char)*q >= 0x7f) {
+				rc = irr_error_set(err, IRR_EINPUT, path, ln,
+				                   "not a SMILES (control or non-ASCII byte)");
+				goto done;
+			}
+		if (!(*out = strdup(p))) {
+			rc = irr_error_set(err, IRR_ENOMEM, path, 0, "out of memory");
+			goto done;
+		}
+		if (line_no)
+			*line_no = ln;
+		if (name)
+			*name = nm, nm = NULL;
+		rc = IRR_OK;
+		goto done;
+	}
+	rc = irr_error_set(err, IRR_EINPUT, path, ln, "no SMILES in the file");
+done:
+	free(nm);
+	free(line);
+	fclose(f);
+	return rc;
+}
