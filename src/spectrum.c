@@ -22,6 +22,8 @@
  * instruments is poor above A ~ 2-3 (common practice), and the shared set
  * shows instruments that floor there (a C=O band at T ~ 0). */
 #define T_FLOOR 1e-3
+/* Highest wavenumber accepted, cm-1 (see normalise_arrays). */
+#define AXIS_MAX_CM 25000.0
 /* A flat top (several equal points at the very maximum) below this
  * absorbance is taken as quantisation, not clipping. */
 #define CLIP_MIN_ABSORBANCE 1.0
@@ -713,6 +715,16 @@ static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *er
 			swap_d(&x[i], &x[j]);
 			swap_d(&y[i], &y[j]);
 		}
+	/* The near infrared ends near 15000 cm-1 (0.67 um), visible light
+	 * spans 14000-25000 cm-1 (400 nm at 25000). An axis beyond that is
+	 * another unit, a typo or corrupt data, and would have later stages
+	 * (the plot's axis) work across an absurd span. The bound is wider
+	 * than the peak lists' 15000 (peaklist.c): a spectrum may run on past
+	 * the bands it shows. */
+	if (!(x[n - 1] <= AXIS_MAX_CM))
+		return irr_spectrum__fail(err, IRR_EINPUT, s->name, 0,
+		                     "X reaches %g cm-1: not a wavenumber range of an infrared spectrum (at most %g cm-1; is X in another unit?)",
+		                     x[n - 1], AXIS_MAX_CM);
 
 	/* Units. */
 	u = s->units;
