@@ -88,10 +88,12 @@ test-unit: all $(UNIT_BIN)
 test-scripts: all $(BUILD)/.deps-test
 	@BUILD=$(BUILD) ONLY=scripts ./tests/run-all
 
-# Each libFuzzer target (fuzz/fuzz_*.c) for FUZZ_SECONDS; see tools/fuzz.
+# Each libFuzzer target (fuzz/fuzz_*.c) for FUZZ_SECONDS, FUZZ_PARALLEL of
+# them at a time; see tools/fuzz.
 FUZZ_SECONDS ?= 60
+FUZZ_PARALLEL ?= 1
 fuzz: $(BUILD)/.deps-test
-	./tools/fuzz -t $(FUZZ_SECONDS)
+	./tools/fuzz -t $(FUZZ_SECONDS) -j $(FUZZ_PARALLEL)
 
 # ---- install, pkg-config, bench --------------------------------------------
 DESTDIR ?=
