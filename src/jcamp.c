@@ -1117,17 +1117,11 @@ static int warn(const char *name, irr_error *err, int rc)
 /* Y-range checks (##FIRSTY, ##MAXY, ##MINY) against the decoded data.
  * Header values are rounded by their writers: the tolerance is one YFACTOR
  * step or half a unit in the last printed digit, whichever is larger. */
-static int check_y_headers(irr_spectrum *s, const header *h, const decoded *d, double yf,
-                           const char *name, irr_error *err)
+static int check_y_headers(irr_spectrum *s, const header *h, double raw0, double rmin,
+                           double rmax, double yf, const char *name, irr_error *err)
 {
-	double step = fabs(yf), raw0 = d->raw[0], rmax = d->raw[0], rmin = d->raw[0];
+	double step = fabs(yf);
 	int rc = IRR_OK, firsty_bad = 0;
-	for (size_t i = 1; i < d->n; i++) {
-		if (d->raw[i] > rmax)
-			rmax = d->raw[i];
-		if (d->raw[i] < rmin)
-			rmin = d->raw[i];
-	}
 	if (yf < 0) {
 		double t = rmax;
 		rmax = rmin;
@@ -1431,21 +1425,25 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 				                   "1 data point: a spectrum needs at least 2");
 				goto done;
 			}
-			if ((rc = check_y_headers(s, &h, &(decoded){.raw = s->y, .n = n}, yf, name, err)) < 0)
-				goto done;
 			{
 				/* An evenly spaced axis is monotonic by construction
 				 * and positive when both ends are; a sum of v * 0 is
 				 * NaN exactly when some v is not finite. The index
-				 * runs as a double too (exact below 2^53). */
-				double z = 0.0, di = 0.0;
+				 * runs as a double too (exact below 2^53). The raw
+				 * extremes for the header checks on the way. */
+				double z = 0.0, di = 0.0, raw0 = s->y[0], rmin = raw0, rmax = raw0;
 				for (size_t i = 0; i < n; i++, di += 1.0) {
+					double v = s->y[i];
+					rmin = v < rmin ? v : rmin;
+					rmax = v > rmax ? v : rmax;
 					s->x[i] = x0 + di * dx;
-					s->y[i] *= yf;
+					s->y[i] = v * yf;
 					z += s->y[i] * 0.0;
 				}
 				if (dx_from_lastx)
 					s->x[n - 1] = h.lastx.v;
+				if ((rc = check_y_headers(s, &h, raw0, rmin, rmax, yf, name, err)) < 0)
+					goto done;
 				if (z != 0.0 || !isfinite(s->x[0]) || !isfinite(s->x[n - 1])) {
 					size_t i = 0;
 					while (i < n && isfinite(s->y[i]))
