@@ -975,10 +975,13 @@ checked:
 		 * does not cut the broad band's width short. A maximum is judged
 		 * by its own size (prominence), so a wiggle on a strong band's
 		 * flank does not pass for a band. */
-		for (size_t i = 1; i + 1 < n; i++)
+		/* Only maxima were kept: the list of them is enough to visit. */
+		for (size_t q = 0; q < nmx; q++) {
+			size_t i = w.mx[q];
 			if (w.keep[i] && w.c[i] - (w.lb[i] > w.rb[i] ? w.lb[i] : w.rb[i]) <
 			                     o->min_rel_height * hmax)
 				w.keep[i] = 4; /* real but below the floor: vetoes a shoulder */
+		}
 	}
 
 	/* Measure each kept maximum. Valleys between neighbouring kept maxima
@@ -986,9 +989,9 @@ checked:
 	{
 		size_t *kidx = w.stk; /* reuse: indices of kept maxima */
 		size_t nk = 0, next_lv = 0;
-		for (size_t i = 0; i < n; i++)
-			if (w.keep[i] & 1)
-				kidx[nk++] = i;
+		for (size_t q = 0; q < nmx; q++)
+			if (w.keep[w.mx[q]] & 1)
+				kidx[nk++] = w.mx[q];
 		for (size_t q = 0; q < nk; q++) {
 			size_t i = kidx[q];
 			size_t lv, rv; /* valley indices */
