@@ -5,7 +5,6 @@
 #include "irrecon/spectrum.h"
 #include "jcamp.h"
 
-#include <errno.h>
 #include <locale.h>
 #include <math.h>
 #include <pthread.h>
