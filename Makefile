@@ -26,7 +26,7 @@ CPPFLAGS  += -Iinclude -Isrc \
              -DIRR_SOURCE_TABLES_DIR='"$(abspath group-tables)"' \
              -DIRR_INSTALL_TABLES_DIR='"$(PREFIX)/share/irrecon/group-tables"'
 CFLAGS    ?= $(OPT) -g
-CFLAGS    += -std=c11 -D_GNU_SOURCE -Wall -Wextra -Wshadow -fPIC $(SAN)
+CFLAGS    += -std=c11 -D_GNU_SOURCE -Wall -Wextra -Wshadow -Werror=implicit-function-declaration -fPIC $(SAN)
 CXXFLAGS  ?= $(OPT) -g
 CXXFLAGS  += -std=c++11 -Wall -Wextra -fPIC $(SAN)
 PKG_CFLAGS = $(shell pkg-config --cflags $(PKGS) 2>/dev/null)

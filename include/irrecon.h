@@ -34,6 +34,7 @@
 #include "irrecon/tables.h"
 #include "irrecon/predict.h"
 #include "irrecon/reconcile.h"
+#include "irrecon/solvents.h"
 #include "irrecon/report.h"
 #include "irrecon/synth.h"
 #include "irrecon/request.h"

@@ -2,7 +2,8 @@
  * (group-tables/solvents/solvents.json): names, aliases, SMILES and their
  * strongest tabulated bands, plus the atmospheric CO2, water vapour and
  * moisture bands every check considers. Loaded with cJSON. */
-#include "irrecon/reconcile.h"
+#include "irrecon/solvents.h"
+#include "irrecon/tables.h"
 #include "solvents.h"
 
 #include <ctype.h>

@@ -1,9 +1,9 @@
 /* solvents.h: library-internal view of the solvent library's atmosphere
  * section (CO2, water vapour, moisture), used by reconcile.c. */
-#ifndef IRRECON_SOLVENTS_H
-#define IRRECON_SOLVENTS_H
+#ifndef IRRECON_SOLVENTS_INTERNAL_H
+#define IRRECON_SOLVENTS_INTERNAL_H
 
-#include "irrecon/reconcile.h"
+#include "irrecon/solvents.h"
 
 typedef struct irr_solvents__air {
 	size_t nco2;

@@ -4,8 +4,8 @@
  * peaks to the expected bands by optimal assignment, attributes the extra
  * bands, and keeps the verdict with its reasons for the reports.
  *
- * Also here: the built-in library of common lab solvents and reagents
- * (group-tables/solvents.json) that --solvent NAME looks up.
+ * The built-in library of common lab solvents and reagents that --solvent
+ * NAME looks up is in solvents.h.
  *
  * Ownership: objects returned through `T **out` belong to the caller;
  * pointers returned by accessors are borrowed from the check and valid until
@@ -21,6 +21,7 @@
 #include "irrecon/perceive.h"
 #include "irrecon/tables.h"
 #include "irrecon/predict.h"
+#include "irrecon/solvents.h"
 
 #ifdef __cplusplus
 extern "C" {
@@ -129,8 +130,7 @@ int irr_check_add_other(irr_check *c, irr_other_kind kind, const char *what,
 /* Uses an already loaded solvent library (borrowed: keep it alive while
  * the check and its clones live) instead of loading one per check; for
  * batches. Call before irr_check_add_other. */
-struct irr_solvent_library;
-int irr_check_use_solvents(irr_check *c, const struct irr_solvent_library *lib,
+int irr_check_use_solvents(irr_check *c, const irr_solvent_library *lib,
                            irr_error *err);
 
 /* Takes ownership of `s` (also on failure): normalises it and picks peaks
@@ -242,37 +242,6 @@ typedef struct irr_check_timing {
 	double peaks, perceive, predict, reconcile;
 } irr_check_timing;
 void irr_check_get_timing(const irr_check *c, irr_check_timing *out);
-
-/* ---- Solvent and reagent library ---- */
-
-typedef struct irr_solvent_band {
-	const char *label;
-	double low, high, typical;
-	irr_intensity intensity;
-	irr_shape shape;
-	const char *source;
-} irr_solvent_band;
-
-typedef struct irr_solvent {
-	const char *name;          /* common name, e.g. "ethyl acetate" */
-	const char *smiles;
-	size_t naliases;
-	const char *const *aliases;/* "EtOAc", "AcOEt" */
-	size_t nbands;
-	const irr_solvent_band *bands;
-} irr_solvent;
-
-typedef struct irr_solvent_library irr_solvent_library;
-
-/* Loads a solvent library (NULL: solvents.json in irr_tables_default_dir()).
- * Caller owns *out. */
-int irr_solvents_load(irr_solvent_library **out, const char *path, irr_error *err);
-void irr_solvents_free(irr_solvent_library *lib);
-size_t irr_solvents_count(const irr_solvent_library *lib);
-const irr_solvent *irr_solvents_get(const irr_solvent_library *lib, size_t i);
-/* By name or alias, case-insensitive, ignoring spaces, '-' and '_'.
- * Borrowed, or NULL. */
-const irr_solvent *irr_solvents_find(const irr_solvent_library *lib, const char *name);
 
 #ifdef __cplusplus
 }
