@@ -32,6 +32,10 @@
 #define FINGERPRINT_DECISIVE_WEIGHT 0.8
 #define DECISIVE_REL      0.4   /* an unexplained peak this strong (>= 1500 cm-1) decides */
 #define SPIKE_FWHM        6.0   /* narrower unexplained peaks never decide alone */
+#define CO_REGION_LOW     1660.0 /* C=O stretch region for carbonyl_where_none */
+#define CO_REGION_HIGH    1870.0
+#define CO_REGION_REL     0.10  /* ... from medium strength (peaks.h medium_frac) */
+#define CO_REGION_REL_ARENE 0.25 /* ... with an aromatic ring in the structure */
 #define HBOND_FWHM        150.0 /* an O-H/N-H band this wide is hydrogen-bonded */
 #define MAX_CANDIDATES    4
 #define MAX_LISTED        5     /* non-decisive unexplained bands named in reasons */
@@ -881,6 +885,22 @@ static int missing_decides(const irr_check *c, size_t i)
  * relative to the strongest, raised by half above 2500 cm-1 under ATR,
  * which weakens bands there (common practice), and more for a wide O-H/N-H
  * band when the structure has neither. */
+/* A band in the C=O stretch region (1660-1870 cm-1) at medium strength or
+ * more, explained by nothing, when the structure has no C=O at all: that
+ * region is empty for a compound without a carbonyl, so such a band means a
+ * carbonyl impurity or a different structure. Common practice. The bounds
+ * keep the H-O-H bend of water (~1640) out; an aromatic ring's combination
+ * bands lie there too and reach medium strength in thick films
+ * (polystyrene-film.jdx, 1745-1870), so with a ring the band must be
+ * stronger. */
+static int carbonyl_where_none(const irr_check *c, const irr_peak *p)
+{
+	const irr_counts *k = irr_inventory_counts(c->inv);
+	double need = k->aromatic_rings ? CO_REGION_REL_ARENE : CO_REGION_REL;
+	return k->c_o_double == 0 && p->position >= CO_REGION_LOW &&
+	       p->position <= CO_REGION_HIGH && p->rel_height >= need;
+}
+
 static double decisive_strength(const irr_check *c, const irr_peak *p)
 {
 	double s = p->rel_height;
@@ -1607,7 +1627,8 @@ int irr_check_run(irr_check *c, irr_error *err)
 				char cl[200] = "";
 				int dec = p->saturated ? p->position >= 1500
 				        : (p->fwhm <= 0 || p->fwhm >= SPIKE_FWHM) &&
-				          decisive_strength(c, p) >= DECISIVE_REL && p->position >= 1500;
+				          ((decisive_strength(c, p) >= DECISIVE_REL && p->position >= 1500) ||
+				           carbonyl_where_none(c, p));
 				if ((pass == 0) != (dec != 0))
 					continue;
 				/* A shoulder or second top of a stronger unexplained band
