@@ -3,6 +3,7 @@
  * of one row into a one-line JSON result or error record. */
 #include "irrecon/batch.h"
 #include "irrecon/report.h"
+#include "json_write.h"
 #include "request_internal.h"
 
 #include <errno.h>
@@ -690,7 +691,6 @@ int irr_batch_run_sample(char **json_out, irr_verdict *verdict,
 	const irr_manifest_sample *s = irr_manifest_get(m, i);
 	irr_request *r = NULL;
 	irr_check *c = NULL;
-	cJSON *obj = NULL;
 	double t0 = 0, t1 = 0, read_s = 0;
 	int rc;
 	*json_out = NULL;
@@ -719,8 +719,7 @@ int irr_batch_run_sample(char **json_out, irr_verdict *verdict,
 	}
 	if (timing)
 		t1 = now_s();
-	obj = irr_report_json_object(c);
-	if (!obj || !(*json_out = cJSON_PrintUnformatted(obj))) {
+	if (irr_report__json_line(json_out, c) != IRR_OK) {
 		rc = irr_error_set(err, IRR_ENOMEM, m->name, 0, "out of memory");
 		goto done;
 	}
@@ -740,7 +739,6 @@ int irr_batch_run_sample(char **json_out, irr_verdict *verdict,
 		timing->samples++;
 	}
 done:
-	cJSON_Delete(obj);
 	irr_check_free(c);
 	irr_request_free(r);
 	return rc;

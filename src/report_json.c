@@ -1,8 +1,10 @@
 /* report_json.c: the JSON result of a check, schema "irrecon.check/1"
- * (docs/check-result-schema.md). Built with cJSON; numbers are rounded
- * before printing so that the same input gives byte-identical output. */
+ * (docs/check-result-schema.md), as a cJSON tree or as compact text
+ * written directly; numbers are rounded before printing so that the same
+ * input gives byte-identical output. */
 #include "irrecon/report.h"
 #include "irrecon/sha256.h"
+#include "json_write.h"
 
 #include <math.h>
 #include <stdlib.h>
@@ -17,217 +19,361 @@ static double round_to(double v, int decimals)
 	return r == 0.0 ? 0.0 : r; /* no "-0" */
 }
 
-/* Adds a number rounded to `decimals`; returns 0 on allocation failure. */
-static int add_num(cJSON *o, const char *k, double v, int decimals)
+/* One description of the result, two outputs: a cJSON tree (for callers
+ * that embed the result in a larger document, and the indented print) or
+ * compact text written directly (the batch's JSON Lines, several times
+ * faster than printing a tree). Both give the same document. */
+typedef struct em {
+	irr_jw *w;                              /* text when set, else tree */
+	cJSON *stack[IRR_JW_MAX_DEPTH];
+	cJSON *root;
+	int depth;
+	int ok;
+} em;
+
+static void e_add(em *e, const char *k, cJSON *item)
 {
-	return cJSON_AddNumberToObject(o, k, round_to(v, decimals)) != NULL;
+	if (!item) {
+		e->ok = 0;
+		return;
+	}
+	if (e->depth == 0) {
+		if (e->root) {
+			cJSON_Delete(item);
+			e->ok = 0;
+			return;
+		}
+		e->root = item;
+	} else if (k) {
+		cJSON_AddItemToObject(e->stack[e->depth - 1], k, item);
+	} else {
+		cJSON_AddItemToArray(e->stack[e->depth - 1], item);
+	}
 }
 
-static int add_str(cJSON *o, const char *k, const char *v)
+static void e_open(em *e, const char *k, int array)
 {
-	return (v ? cJSON_AddStringToObject(o, k, v) : cJSON_AddNullToObject(o, k)) != NULL;
+	cJSON *item;
+	if (!e->ok)
+		return;
+	if (e->w) {
+		(array ? irr_jw__begin_array : irr_jw__begin_object)(e->w, k);
+		return;
+	}
+	if (e->depth >= IRR_JW_MAX_DEPTH) {
+		e->ok = 0;
+		return;
+	}
+	item = array ? cJSON_CreateArray() : cJSON_CreateObject();
+	e_add(e, k, item);
+	if (e->ok)
+		e->stack[e->depth++] = item;
 }
 
-static cJSON *window(double lo, double hi)
+static void e_obj(em *e, const char *k) { e_open(e, k, 0); }
+static void e_arr(em *e, const char *k) { e_open(e, k, 1); }
+
+static void e_end(em *e)
 {
-	cJSON *a = cJSON_CreateArray();
-	if (!a)
-		return NULL;
-	cJSON_AddItemToArray(a, cJSON_CreateNumber(round_to(lo, 1)));
-	cJSON_AddItemToArray(a, cJSON_CreateNumber(round_to(hi, 1)));
-	return cJSON_GetArraySize(a) == 2 ? a : (cJSON_Delete(a), NULL);
+	if (!e->ok)
+		return;
+	if (e->w)
+		irr_jw__end(e->w);
+	else if (e->depth > 0)
+		e->depth--;
 }
 
-static cJSON *other_json(const irr_check *c, const irr_other *r)
+/* A NULL string is null. */
+static void e_str(em *e, const char *k, const char *v)
 {
-	cJSON *o = cJSON_CreateObject(), *mk;
-	int ok = o != NULL;
-	ok = ok && add_str(o, "given", r->given) && add_str(o, "name", r->name) &&
-	     add_str(o, "smiles", r->smiles) && add_str(o, "formula", r->formula) &&
-	     add_str(o, "status", irr_presence_name(r->presence));
-	ok = ok && cJSON_AddNumberToObject(o, "attributed_bands", (double)r->nattributed);
-	ok = ok && (mk = cJSON_AddArrayToObject(o, "marker_bands"));
-	for (size_t i = 0; ok && i < r->nmarkers; i++) {
+	if (!e->ok)
+		return;
+	if (e->w)
+		irr_jw__string(e->w, k, v);
+	else
+		e_add(e, k, v ? cJSON_CreateString(v) : cJSON_CreateNull());
+}
+
+/* Array members: a NULL string is a fault, as cJSON_CreateString(NULL). */
+static void e_item(em *e, const char *v)
+{
+	if (!v)
+		e->ok = 0;
+	else
+		e_str(e, NULL, v);
+}
+
+static void e_num(em *e, const char *k, double v)
+{
+	if (!e->ok)
+		return;
+	if (e->w)
+		irr_jw__number(e->w, k, v);
+	else
+		e_add(e, k, cJSON_CreateNumber(v));
+}
+
+/* A number rounded to `decimals`. */
+static void e_round(em *e, const char *k, double v, int decimals)
+{
+	e_num(e, k, round_to(v, decimals));
+}
+
+static void e_bool(em *e, const char *k, int v)
+{
+	if (!e->ok)
+		return;
+	if (e->w)
+		irr_jw__bool(e->w, k, v);
+	else
+		e_add(e, k, cJSON_CreateBool(v));
+}
+
+static void e_null(em *e, const char *k)
+{
+	if (!e->ok)
+		return;
+	if (e->w)
+		irr_jw__null(e->w, k);
+	else
+		e_add(e, k, cJSON_CreateNull());
+}
+
+static void e_window(em *e, const char *k, double lo, double hi)
+{
+	e_arr(e, k);
+	e_round(e, NULL, lo, 1);
+	e_round(e, NULL, hi, 1);
+	e_end(e);
+}
+
+static void other_json(em *e, const irr_check *c, const irr_other *r)
+{
+	e_obj(e, NULL);
+	e_str(e, "given", r->given);
+	e_str(e, "name", r->name);
+	e_str(e, "smiles", r->smiles);
+	e_str(e, "formula", r->formula);
+	e_str(e, "status", irr_presence_name(r->presence));
+	e_num(e, "attributed_bands", (double)r->nattributed);
+	e_arr(e, "marker_bands");
+	for (size_t i = 0; e->ok && i < r->nmarkers; i++) {
 		const irr_marker *m = &r->markers[i];
-		cJSON *j = cJSON_CreateObject();
-		ok = j && (cJSON_AddItemToArray(mk, j), 1);
-		ok = ok && add_str(j, "label", m->label) &&
-		     cJSON_AddItemToObject(j, "window", window(m->low, m->high)) &&
-		     add_num(j, "typical", m->typical, 1) &&
-		     add_str(j, "intensity", irr_intensity_name(m->intensity)) &&
-		     cJSON_AddBoolToObject(j, "observable", m->observable) &&
-		     cJSON_AddBoolToObject(j, "found", m->peak >= 0);
-		if (ok && m->peak >= 0) {
+		e_obj(e, NULL);
+		e_str(e, "label", m->label);
+		e_window(e, "window", m->low, m->high);
+		e_round(e, "typical", m->typical, 1);
+		e_str(e, "intensity", irr_intensity_name(m->intensity));
+		e_bool(e, "observable", m->observable);
+		e_bool(e, "found", m->peak >= 0);
+		if (m->peak >= 0) {
 			const irr_observed *ob = irr_check_observed(c, (size_t)m->peak);
-			ok = add_num(j, "peak", ob->peak->position, 1) &&
-			     add_num(j, "relative_strength", m->rel_strength, 3);
-		} else if (ok) {
-			ok = cJSON_AddNullToObject(j, "peak") && cJSON_AddNullToObject(j, "relative_strength");
+			e_round(e, "peak", ob->peak->position, 1);
+			e_round(e, "relative_strength", m->rel_strength, 3);
+		} else {
+			e_null(e, "peak");
+			e_null(e, "relative_strength");
+		}
+		e_end(e);
+	}
+	e_end(e);
+	e_end(e);
+}
+
+static void describe(em *e, const irr_check *c)
+{
+	const irr_check_options *opt = irr_check_get_options(c);
+	const irr_peaklist *pl = irr_check_peaklist(c);
+	size_t n;
+
+	e_obj(e, NULL);
+	e_str(e, "schema", IRR_CHECK_SCHEMA);
+	e_str(e, "sample", opt->sample_id);
+	e_str(e, "verdict", irr_verdict_name(irr_check_verdict(c)));
+	e_round(e, "score", irr_check_score(c), 3);
+
+	e_arr(e, "reasons");
+	n = irr_check_reason_count(c);
+	for (size_t i = 0; e->ok && i < n; i++) {
+		const irr_reason *r = irr_check_reason(c, i);
+		e_obj(e, NULL);
+		e_str(e, "code", r->code);
+		e_str(e, "text", r->text);
+		e_bool(e, "decisive", r->decisive);
+		e_end(e);
+	}
+	e_end(e);
+
+	e_obj(e, "structure");
+	e_str(e, "smiles", irr_check_structure_smiles(c));
+	e_str(e, "formula", irr_check_structure_formula(c));
+	{
+		const irr_inventory *inv = irr_check_inventory(c);
+		e_arr(e, "groups");
+		for (size_t i = 0; e->ok && i < irr_inventory_group_count(inv); i++) {
+			const irr_group *gr = irr_inventory_group(inv, i);
+			e_obj(e, NULL);
+			e_str(e, "id", gr->id);
+			e_num(e, "count", gr->count);
+			e_end(e);
+		}
+		e_end(e);
+	}
+	e_end(e);
+
+	e_arr(e, "expected");
+	n = irr_check_expected_count(c);
+	for (size_t i = 0; e->ok && i < n; i++) {
+		const irr_expected *x = irr_check_expected(c, i);
+		const irr_band *b = x->band;
+		e_obj(e, NULL);
+		e_str(e, "group", b->group_id);
+		e_str(e, "group_name", b->group_name);
+		e_str(e, "label", b->label);
+		e_window(e, "window", b->low, b->high);
+		e_round(e, "typical", b->typical, 1);
+		e_str(e, "intensity", irr_intensity_name(b->intensity));
+		e_str(e, "shape", irr_shape_name(b->shape));
+		e_round(e, "weight", x->weight, 3);
+		e_bool(e, "overtone", b->overtone);
+		e_str(e, "status", irr_band_status_name(x->status));
+		if (x->peak >= 0) {
+			e_round(e, "peak", irr_check_observed(c, (size_t)x->peak)->peak->position, 1);
+			e_round(e, "deviation", x->deviation, 1);
+		} else {
+			e_null(e, "peak");
+			e_null(e, "deviation");
+		}
+		e_bool(e, "shared", x->shared);
+		e_str(e, "note", x->note);
+		e_str(e, "source", b->source);
+		e_end(e);
+	}
+	e_end(e);
+
+	e_arr(e, "observed");
+	n = irr_check_observed_count(c);
+	for (size_t i = 0; e->ok && i < n; i++) {
+		const irr_observed *ob = irr_check_observed(c, i);
+		const irr_peak *p = ob->peak;
+		e_obj(e, NULL);
+		e_round(e, "position", p->position, 1);
+		e_round(e, "height", p->height, 4);
+		e_round(e, "relative_height", p->rel_height, 3);
+		e_round(e, "fwhm", p->fwhm, 1);
+		e_str(e, "intensity", irr_intensity_name(p->intensity));
+		e_bool(e, "broad", p->broad);
+		e_bool(e, "saturated", p->saturated);
+		e_bool(e, "significant", ob->significant);
+		e_str(e, "status", irr_peak_status_name(ob->status));
+		if (ob->expected >= 0)
+			e_num(e, "explained_by", (double)ob->expected);
+		else
+			e_null(e, "explained_by");
+		if (ob->status == IRR_PEAK_ATTRIBUTED) {
+			e_obj(e, "attributed_to");
+			e_str(e, "kind", irr_source_kind_name(ob->attributed_kind));
+			e_str(e, "name", ob->attributed_name);
+			e_str(e, "smiles", ob->attributed_smiles);
+			e_str(e, "band", ob->attributed_label);
+			e_end(e);
+		} else {
+			e_null(e, "attributed_to");
+		}
+		e_arr(e, "candidates");
+		for (size_t k = 0; e->ok && k < ob->ncandidates; k++)
+			e_item(e, ob->candidates[k]);
+		e_end(e);
+		e_end(e);
+	}
+	e_end(e);
+
+	{
+		static const char *const keys[] = {"starting_materials", "reagents", "solvents"};
+		for (int kind = 0; e->ok && kind < 3; kind++) {
+			e_arr(e, keys[kind]);
+			for (size_t i = 0; e->ok && i < irr_check_other_count(c); i++) {
+				const irr_other *r = irr_check_other(c, i);
+				if ((int)r->kind == kind)
+					other_json(e, c, r);
+			}
+			e_end(e);
 		}
 	}
-	if (!ok) {
-		cJSON_Delete(o);
-		return NULL;
+
+	e_arr(e, "cautions");
+	for (size_t i = 0; e->ok && i < irr_check_caution_count(c); i++)
+		e_item(e, irr_check_caution(c, i));
+	e_end(e);
+
+	e_obj(e, "provenance");
+	{
+		const irr_spectrum *s = irr_check_spectrum(c);
+		double lo = 0, hi = 0;
+		e_str(e, "tool", "irrecon");
+		e_str(e, "version", irr_version());
+		e_str(e, "tables_digest", irr_tables_digest(irr_check_tables(c)));
+		e_obj(e, "input");
+		e_str(e, "name", opt->input_name);
+		e_str(e, "sha256", opt->input_sha256);
+		e_str(e, "kind", s ? "spectrum" : "peak_list");
+		e_str(e, "format", s ? irr_spectrum_source_format(s) : NULL);
+		irr_peaklist_range(pl, &lo, &hi);
+		e_window(e, "range", lo, hi);
+		e_num(e, "peaks", (double)irr_peaklist_count(pl));
+		e_end(e);
+		e_obj(e, "options");
+		e_str(e, "phase", irr_phase_name(opt->phase));
+		e_str(e, "sampling", irr_sampling_name(opt->sampling));
+		e_obj(e, "peaks");
+		e_round(e, "smooth_cm", opt->peaks.smooth_cm, 3);
+		e_round(e, "min_snr", opt->peaks.min_snr, 3);
+		e_round(e, "min_rel_height", opt->peaks.min_rel_height, 4);
+		e_round(e, "strong_frac", opt->peaks.strong_frac, 3);
+		e_round(e, "medium_frac", opt->peaks.medium_frac, 3);
+		e_round(e, "broad_cm", opt->peaks.broad_cm, 2);
+		e_bool(e, "shoulders", opt->peaks.shoulders);
+		e_bool(e, "baseline", opt->peaks.baseline);
+		e_end(e);
+		e_end(e);
 	}
-	return o;
+	e_end(e);
+	e_end(e);
 }
 
 void *irr_report_json_object(const irr_check *c)
 {
-	cJSON *root, *a, *o;
-	const irr_check_options *opt;
-	const irr_peaklist *pl;
-	int ok;
-	size_t n;
+	em e;
 	if (!c || !irr_check_prediction(c))
 		return NULL;
-	opt = irr_check_get_options(c);
-	pl = irr_check_peaklist(c);
-	root = cJSON_CreateObject();
-	ok = root != NULL;
-	ok = ok && add_str(root, "schema", IRR_CHECK_SCHEMA) &&
-	     add_str(root, "sample", opt->sample_id) &&
-	     add_str(root, "verdict", irr_verdict_name(irr_check_verdict(c))) &&
-	     add_num(root, "score", irr_check_score(c), 3);
-
-	ok = ok && (a = cJSON_AddArrayToObject(root, "reasons"));
-	n = irr_check_reason_count(c);
-	for (size_t i = 0; ok && i < n; i++) {
-		const irr_reason *r = irr_check_reason(c, i);
-		o = cJSON_CreateObject();
-		ok = o && (cJSON_AddItemToArray(a, o), 1) && add_str(o, "code", r->code) &&
-		     add_str(o, "text", r->text) && cJSON_AddBoolToObject(o, "decisive", r->decisive);
-	}
-
-	ok = ok && (o = cJSON_AddObjectToObject(root, "structure"));
-	ok = ok && add_str(o, "smiles", irr_check_structure_smiles(c)) &&
-	     add_str(o, "formula", irr_check_structure_formula(c));
-	if (ok) {
-		const irr_inventory *inv = irr_check_inventory(c);
-		cJSON *g = cJSON_AddArrayToObject(o, "groups");
-		ok = g != NULL;
-		for (size_t i = 0; ok && i < irr_inventory_group_count(inv); i++) {
-			const irr_group *gr = irr_inventory_group(inv, i);
-			cJSON *s = cJSON_CreateObject();
-			ok = s && (cJSON_AddItemToArray(g, s), 1) && add_str(s, "id", gr->id) &&
-			     cJSON_AddNumberToObject(s, "count", gr->count);
-		}
-	}
-
-	ok = ok && (a = cJSON_AddArrayToObject(root, "expected"));
-	n = irr_check_expected_count(c);
-	for (size_t i = 0; ok && i < n; i++) {
-		const irr_expected *e = irr_check_expected(c, i);
-		const irr_band *b = e->band;
-		o = cJSON_CreateObject();
-		ok = o && (cJSON_AddItemToArray(a, o), 1) && add_str(o, "group", b->group_id) &&
-		     add_str(o, "group_name", b->group_name) && add_str(o, "label", b->label) &&
-		     cJSON_AddItemToObject(o, "window", window(b->low, b->high)) &&
-		     add_num(o, "typical", b->typical, 1) &&
-		     add_str(o, "intensity", irr_intensity_name(b->intensity)) &&
-		     add_str(o, "shape", irr_shape_name(b->shape)) &&
-		     add_num(o, "weight", e->weight, 3) &&
-		     cJSON_AddBoolToObject(o, "overtone", b->overtone) &&
-		     add_str(o, "status", irr_band_status_name(e->status));
-		if (ok && e->peak >= 0) {
-			ok = add_num(o, "peak", irr_check_observed(c, (size_t)e->peak)->peak->position, 1) &&
-			     add_num(o, "deviation", e->deviation, 1);
-		} else if (ok) {
-			ok = cJSON_AddNullToObject(o, "peak") && cJSON_AddNullToObject(o, "deviation");
-		}
-		ok = ok && cJSON_AddBoolToObject(o, "shared", e->shared) && add_str(o, "note", e->note) &&
-		     add_str(o, "source", b->source);
-	}
-
-	ok = ok && (a = cJSON_AddArrayToObject(root, "observed"));
-	n = irr_check_observed_count(c);
-	for (size_t i = 0; ok && i < n; i++) {
-		const irr_observed *ob = irr_check_observed(c, i);
-		const irr_peak *p = ob->peak;
-		cJSON *cd;
-		o = cJSON_CreateObject();
-		ok = o && (cJSON_AddItemToArray(a, o), 1) && add_num(o, "position", p->position, 1) &&
-		     add_num(o, "height", p->height, 4) && add_num(o, "relative_height", p->rel_height, 3) &&
-		     add_num(o, "fwhm", p->fwhm, 1) &&
-		     add_str(o, "intensity", irr_intensity_name(p->intensity)) &&
-		     cJSON_AddBoolToObject(o, "broad", p->broad) &&
-		     cJSON_AddBoolToObject(o, "saturated", p->saturated) &&
-		     cJSON_AddBoolToObject(o, "significant", ob->significant) &&
-		     add_str(o, "status", irr_peak_status_name(ob->status));
-		if (ok && ob->expected >= 0)
-			ok = cJSON_AddNumberToObject(o, "explained_by", (double)ob->expected) != NULL;
-		else if (ok)
-			ok = cJSON_AddNullToObject(o, "explained_by") != NULL;
-		if (ok && ob->status == IRR_PEAK_ATTRIBUTED) {
-			cJSON *at = cJSON_AddObjectToObject(o, "attributed_to");
-			ok = at && add_str(at, "kind", irr_source_kind_name(ob->attributed_kind)) &&
-			     add_str(at, "name", ob->attributed_name) &&
-			     add_str(at, "smiles", ob->attributed_smiles) &&
-			     add_str(at, "band", ob->attributed_label);
-		} else if (ok) {
-			ok = cJSON_AddNullToObject(o, "attributed_to") != NULL;
-		}
-		ok = ok && (cd = cJSON_AddArrayToObject(o, "candidates"));
-		for (size_t k = 0; ok && k < ob->ncandidates; k++) {
-			cJSON *s = cJSON_CreateString(ob->candidates[k]);
-			ok = s && (cJSON_AddItemToArray(cd, s), 1);
-		}
-	}
-
-	{
-		static const char *const keys[] = {"starting_materials", "reagents", "solvents"};
-		for (int kind = 0; ok && kind < 3; kind++) {
-			ok = (a = cJSON_AddArrayToObject(root, keys[kind])) != NULL;
-			for (size_t i = 0; ok && i < irr_check_other_count(c); i++) {
-				const irr_other *r = irr_check_other(c, i);
-				if ((int)r->kind != kind)
-					continue;
-				o = other_json(c, r);
-				ok = o && (cJSON_AddItemToArray(a, o), 1);
-			}
-		}
-	}
-
-	ok = ok && (a = cJSON_AddArrayToObject(root, "cautions"));
-	for (size_t i = 0; ok && i < irr_check_caution_count(c); i++) {
-		cJSON *s = cJSON_CreateString(irr_check_caution(c, i));
-		ok = s && (cJSON_AddItemToArray(a, s), 1);
-	}
-
-	ok = ok && (o = cJSON_AddObjectToObject(root, "provenance"));
-	if (ok) {
-		const irr_spectrum *s = irr_check_spectrum(c);
-		cJSON *in, *op, *pk;
-		double lo = 0, hi = 0;
-		ok = add_str(o, "tool", "irrecon") && add_str(o, "version", irr_version()) &&
-		     add_str(o, "tables_digest", irr_tables_digest(irr_check_tables(c)));
-		ok = ok && (in = cJSON_AddObjectToObject(o, "input"));
-		ok = ok && add_str(in, "name", opt->input_name) && add_str(in, "sha256", opt->input_sha256) &&
-		     add_str(in, "kind", s ? "spectrum" : "peak_list") &&
-		     add_str(in, "format", s ? irr_spectrum_source_format(s) : NULL);
-		if (ok) {
-			irr_peaklist_range(pl, &lo, &hi);
-			ok = cJSON_AddItemToObject(in, "range", window(lo, hi)) &&
-			     cJSON_AddNumberToObject(in, "peaks", (double)irr_peaklist_count(pl));
-		}
-		ok = ok && (op = cJSON_AddObjectToObject(o, "options"));
-		ok = ok && add_str(op, "phase", irr_phase_name(opt->phase)) &&
-		     add_str(op, "sampling", irr_sampling_name(opt->sampling));
-		ok = ok && (pk = cJSON_AddObjectToObject(op, "peaks"));
-		ok = ok && add_num(pk, "smooth_cm", opt->peaks.smooth_cm, 3) &&
-		     add_num(pk, "min_snr", opt->peaks.min_snr, 3) &&
-		     add_num(pk, "min_rel_height", opt->peaks.min_rel_height, 4) &&
-		     add_num(pk, "strong_frac", opt->peaks.strong_frac, 3) &&
-		     add_num(pk, "medium_frac", opt->peaks.medium_frac, 3) &&
-		     add_num(pk, "broad_cm", opt->peaks.broad_cm, 2) &&
-		     cJSON_AddBoolToObject(pk, "shoulders", opt->peaks.shoulders) &&
-		     cJSON_AddBoolToObject(pk, "baseline", opt->peaks.baseline);
-	}
-	if (!ok) {
-		cJSON_Delete(root);
+	memset(&e, 0, sizeof e);
+	e.ok = 1;
+	describe(&e, c);
+	if (!e.ok || e.depth != 0) {
+		cJSON_Delete(e.root);
 		return NULL;
 	}
-	return root;
+	return e.root;
+}
+
+int irr_report__json_line(char **out, const irr_check *c)
+{
+	irr_jw w;
+	em e;
+	*out = NULL;
+	if (!c || !irr_check_prediction(c))
+		return IRR_EINPUT;
+	memset(&w, 0, sizeof w);
+	memset(&e, 0, sizeof e);
+	e.w = &w;
+	e.ok = 1;
+	describe(&e, c);
+	if (!e.ok || w.bad || w.out.oom || w.depth != 0 || !w.out.p) {
+		free(w.out.p);
+		return w.bad ? IRR_EINPUT : IRR_ENOMEM;
+	}
+	*out = w.out.p;
+	return IRR_OK;
 }
 
 int irr_report_json(char **out, const irr_check *c)
