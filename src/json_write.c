@@ -10,6 +10,7 @@
 #include <locale.h>
 #include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
 /* Exact powers of ten (every one up to 1e22 is a double). */
@@ -125,39 +126,80 @@ size_t irr_json__format_number(char *out, double d)
 	return slow_number(out, d);
 }
 
-static void put_string(irr_buf *b, const char *s)
+/* Room for n more bytes and the NUL; the buffer starts large enough for a
+ * typical result, so it is rarely moved. */
+static char *room(irr_jw *w, size_t n)
+{
+	irr_buf *b = &w->out;
+	if (b->oom)
+		return NULL;
+	if (b->len + n + 1 > b->cap) {
+		size_t cap = b->cap ? b->cap : 16384;
+		char *np;
+		while (cap < b->len + n + 1)
+			cap *= 2;
+		np = realloc(b->p, cap);
+		if (!np) {
+			b->oom = 1;
+			return NULL;
+		}
+		b->p = np;
+		b->cap = cap;
+	}
+	return b->p + b->len;
+}
+
+static void put(irr_jw *w, const char *s, size_t n)
+{
+	char *q = room(w, n);
+	if (q) {
+		memcpy(q, s, n);
+		w->out.len += n;
+		w->out.p[w->out.len] = '\0';
+	}
+}
+
+/* RFC 8259 escapes as cJSON writes them: the two-character forms where
+ * they exist, \u00xx in lower-case hex for the other control characters,
+ * everything from 0x20 up (UTF-8 included) as it is but '"' and '\'. */
+static const char esc_kind[256] = {
+	'u', 'u', 'u', 'u', 'u', 'u', 'u', 'u', 'b', 't', 'n', 'u', 'f', 'r', 'u', 'u',
+	'u', 'u', 'u', 'u', 'u', 'u', 'u', 'u', 'u', 'u', 'u', 'u', 'u', 'u', 'u', 'u',
+	0, 0, '"', 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0,
+	0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0,
+	0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0,
+	0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, '\\', 0, 0, 0};
+
+/* Writes "s" (quoted, escaped) and then `tail` (tn bytes). */
+static void put_string(irr_jw *w, const char *s, const char *tail, size_t tn)
 {
 	static const char hex[] = "0123456789abcdef";
-	const unsigned char *p = (const unsigned char *)s, *run = p;
-	irr_buf__add(b, "\"", 1);
+	size_t n = strlen(s);
+	char *q = room(w, 6 * n + 2 + tn), *q0 = q;
+	const unsigned char *p = (const unsigned char *)s;
+	if (!q)
+		return;
+	*q++ = '"';
 	for (; *p; p++) {
-		char esc[6];
-		size_t n = 2;
-		if (*p >= 32 && *p != '"' && *p != '\\')
+		char k = esc_kind[*p];
+		if (!k) {
+			*q++ = (char)*p;
 			continue;
-		irr_buf__add(b, (const char *)run, (size_t)(p - run));
-		esc[0] = '\\';
-		switch (*p) {
-		case '"': esc[1] = '"'; break;
-		case '\\': esc[1] = '\\'; break;
-		case '\b': esc[1] = 'b'; break;
-		case '\f': esc[1] = 'f'; break;
-		case '\n': esc[1] = 'n'; break;
-		case '\r': esc[1] = 'r'; break;
-		case '\t': esc[1] = 't'; break;
-		default:
-			esc[1] = 'u';
-			esc[2] = '0';
-			esc[3] = '0';
-			esc[4] = hex[*p >> 4];
-			esc[5] = hex[*p & 15];
-			n = 6;
 		}
-		irr_buf__add(b, esc, n);
-		run = p + 1;
+		*q++ = '\\';
+		*q++ = k;
+		if (k == 'u') {
+			*q++ = '0';
+			*q++ = '0';
+			*q++ = hex[*p >> 4];
+			*q++ = hex[*p & 15];
+		}
 	}
-	irr_buf__add(b, (const char *)run, (size_t)(p - run));
-	irr_buf__add(b, "\"", 1);
+	*q++ = '"';
+	memcpy(q, tail, tn);
+	q += tn;
+	*q = '\0';
+	w->out.len += (size_t)(q - q0);
 }
 
 /* The comma and the key before a member; returns 0 once the writer failed. */
@@ -167,14 +209,12 @@ static int member(irr_jw *w, const char *key)
 		return 0;
 	if (w->depth > 0) {
 		if (!w->first[w->depth - 1])
-			irr_buf__add(&w->out, ",", 1);
+			put(w, ",", 1);
 		w->first[w->depth - 1] = 0;
 	}
-	if (key) {
-		put_string(&w->out, key);
-		irr_buf__add(&w->out, ":", 1);
-	}
-	return 1;
+	if (key)
+		put_string(w, key, ":", 1);
+	return !w->out.oom;
 }
 
 static void open_(irr_jw *w, const char *key, const char *bracket)
@@ -185,7 +225,7 @@ static void open_(irr_jw *w, const char *key, const char *bracket)
 		w->bad = 1;
 		return;
 	}
-	irr_buf__add(&w->out, bracket, 1);
+	put(w, bracket, 1);
 	w->is_array[w->depth] = bracket[0] == '[';
 	w->first[w->depth++] = 1;
 }
@@ -202,7 +242,7 @@ void irr_jw__end(irr_jw *w)
 		return;
 	}
 	w->depth--;
-	irr_buf__add(&w->out, w->is_array[w->depth] ? "]" : "}", 1);
+	put(w, w->is_array[w->depth] ? "]" : "}", 1);
 }
 
 void irr_jw__string(irr_jw *w, const char *key, const char *v)
@@ -210,9 +250,9 @@ void irr_jw__string(irr_jw *w, const char *key, const char *v)
 	if (!member(w, key))
 		return;
 	if (v)
-		put_string(&w->out, v);
+		put_string(w, v, "", 0);
 	else
-		irr_buf__add(&w->out, "null", 4);
+		put(w, "null", 4);
 }
 
 void irr_jw__number(irr_jw *w, const char *key, double v)
@@ -222,17 +262,17 @@ void irr_jw__number(irr_jw *w, const char *key, double v)
 	if (!member(w, key))
 		return;
 	n = irr_json__format_number(nb, v);
-	irr_buf__add(&w->out, nb, n);
+	put(w, nb, n);
 }
 
 void irr_jw__bool(irr_jw *w, const char *key, int v)
 {
 	if (member(w, key))
-		irr_buf__add(&w->out, v ? "true" : "false", v ? 4 : 5);
+		put(w, v ? "true" : "false", v ? 4 : 5);
 }
 
 void irr_jw__null(irr_jw *w, const char *key)
 {
 	if (member(w, key))
-		irr_buf__add(&w->out, "null", 4);
+		put(w, "null", 4);
 }
