@@ -1,6 +1,7 @@
 /* json_write.h: compact JSON text written straight into a buffer, byte for
- * byte as cJSON_PrintUnformatted (cJSON 1.7) would print the same tree,
- * without building the tree. Library-internal. */
+ * byte as cJSON_PrintUnformatted (cJSON 1.7.15, Debian's libcjson) would
+ * print the same tree, without building the tree; tests/unit/
+ * test_json_write.c holds it to the linked cJSON. Library-internal. */
 #ifndef IRRECON_JSON_WRITE_H
 #define IRRECON_JSON_WRITE_H
 
