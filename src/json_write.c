@@ -170,17 +170,14 @@ static const char esc_kind[256] = {
 	0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0,
 	0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, '\\', 0, 0, 0};
 
-/* Writes "s" (quoted, escaped) and then `tail` (tn bytes). */
-static void put_string(irr_jw *w, const char *s, const char *tail, size_t tn)
+/* Writes the n bytes of s quoted and escaped at q (room for 6 n + 2);
+ * returns the end. */
+static char *quote(char *q, const char *s, size_t n)
 {
 	static const char hex[] = "0123456789abcdef";
-	size_t n = strlen(s);
-	char *q = room(w, 6 * n + 2 + tn), *q0 = q;
-	const unsigned char *p = (const unsigned char *)s;
-	if (!q)
-		return;
+	const unsigned char *p = (const unsigned char *)s, *e = p + n;
 	*q++ = '"';
-	for (; *p; p++) {
+	for (; p < e; p++) {
 		char k = esc_kind[*p];
 		if (!k) {
 			*q++ = (char)*p;
@@ -196,36 +193,49 @@ static void put_string(irr_jw *w, const char *s, const char *tail, size_t tn)
 		}
 	}
 	*q++ = '"';
-	memcpy(q, tail, tn);
-	q += tn;
-	*q = '\0';
-	w->out.len += (size_t)(q - q0);
+	return q;
 }
 
-/* The comma and the key before a member; returns 0 once the writer failed. */
-static int member(irr_jw *w, const char *key)
+/* One member: the comma before it, the key inside objects, then either
+ * the string `str` (quoted) or the raw text `raw` (rn bytes), all written
+ * into one reservation. Returns 0 once the writer failed. */
+static int member(irr_jw *w, const char *key, const char *str, const char *raw, size_t rn)
 {
+	size_t kn = key ? strlen(key) : 0, sn = str ? strlen(str) : 0;
+	char *q, *q0;
 	if (w->bad || w->out.oom)
+		return 0;
+	if (!(q = q0 = room(w, 1 + (key ? 6 * kn + 3 : 0) + (str ? 6 * sn + 2 : rn))))
 		return 0;
 	if (w->depth > 0) {
 		if (!w->first[w->depth - 1])
-			put(w, ",", 1);
+			*q++ = ',';
 		w->first[w->depth - 1] = 0;
 	}
-	if (key)
-		put_string(w, key, ":", 1);
-	return !w->out.oom;
+	if (key) {
+		q = quote(q, key, kn);
+		*q++ = ':';
+	}
+	if (str) {
+		q = quote(q, str, sn);
+	} else {
+		memcpy(q, raw, rn);
+		q += rn;
+	}
+	*q = '\0';
+	w->out.len += (size_t)(q - q0);
+	return 1;
 }
 
 static void open_(irr_jw *w, const char *key, const char *bracket)
 {
-	if (!member(w, key))
-		return;
 	if (w->depth >= IRR_JW_MAX_DEPTH) {
-		w->bad = 1;
+		if (!w->out.oom)
+			w->bad = 1;
 		return;
 	}
-	put(w, bracket, 1);
+	if (!member(w, key, NULL, bracket, 1))
+		return;
 	w->is_array[w->depth] = bracket[0] == '[';
 	w->first[w->depth++] = 1;
 }
@@ -247,32 +257,22 @@ void irr_jw__end(irr_jw *w)
 
 void irr_jw__string(irr_jw *w, const char *key, const char *v)
 {
-	if (!member(w, key))
-		return;
-	if (v)
-		put_string(w, v, "", 0);
-	else
-		put(w, "null", 4);
+	member(w, key, v, "null", 4);
 }
 
 void irr_jw__number(irr_jw *w, const char *key, double v)
 {
 	char nb[32];
-	size_t n;
-	if (!member(w, key))
-		return;
-	n = irr_json__format_number(nb, v);
-	put(w, nb, n);
+	size_t n = irr_json__format_number(nb, v);
+	member(w, key, NULL, nb, n);
 }
 
 void irr_jw__bool(irr_jw *w, const char *key, int v)
 {
-	if (member(w, key))
-		put(w, v ? "true" : "false", v ? 4 : 5);
+	member(w, key, NULL, v ? "true" : "false", v ? 4 : 5);
 }
 
 void irr_jw__null(irr_jw *w, const char *key)
 {
-	if (member(w, key))
-		put(w, "null", 4);
+	member(w, key, NULL, "null", 4);
 }
