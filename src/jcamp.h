@@ -8,7 +8,7 @@
 #include "irrecon/spectrum.h"
 
 #define IRR_SPECTRUM__DEFAULT_MAX_BYTES ((size_t)256 * 1024 * 1024)
-#define IRR_SPECTRUM__DEFAULT_MAX_POINTS ((size_t)4000000)
+#define IRR_SPECTRUM__DEFAULT_MAX_POINTS ((size_t)1000000)
 
 struct irr_spectrum {
 	size_t n;

@@ -32,7 +32,7 @@ typedef struct irr_read_options {
 	irr_yunits y_units;   /* CSV without a units header: what Y is (UNKNOWN = detect) */
 	int x_micrometers;    /* CSV: X is in micrometres, not cm-1 */
 	size_t max_bytes;     /* refuse larger files; 0 = default (256 MiB) */
-	size_t max_points;    /* refuse more points; 0 = default (4,000,000) */
+	size_t max_points;    /* refuse more points; 0 = default (1,000,000) */
 } irr_read_options;
 
 /* Fills `o` with the defaults above. */

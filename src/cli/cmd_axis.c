@@ -20,7 +20,7 @@ static const cli_opt opts[] = {
 	{"--block", "N", "compound JCAMP-DX file: use block N"},
 	{"--decimal-comma", NULL, "CSV: ',' is the decimal separator"},
 	{"--max-bytes", "N", "refuse files larger than N bytes (default 256 MiB)"},
-	{"--max-points", "N", "refuse spectra of more than N points (default 4,000,000)"},
+	{"--max-points", "N", "refuse spectra of more than N points (default 1,000,000)"},
 	{"--y-units", "UNITS", "CSV without units header: absorbance, transmittance, ..."},
 	{"--search", "CM", "look for each band within +-CM cm-1 (default 6)"},
 	{"--min-snr", "X", "a band must stand X noise sd above its valleys (5)"},

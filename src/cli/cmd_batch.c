@@ -40,7 +40,7 @@ static const cli_opt opts[] = {
 	                    "else the installed tables)"},
 	{"--add-table", "FILE", "an extra group table; repeatable"},
 	{"--max-bytes", "N", "refuse input files larger than N bytes (default 256 MiB)"},
-	{"--max-points", "N", "refuse spectra of more than N points (default 4,000,000)"},
+	{"--max-points", "N", "refuse spectra of more than N points (default 1,000,000)"},
 	{"--timing", NULL, "print the time spent per stage on stderr"},
 	{"--quiet", NULL, "no progress bar and no summary"},
 	{"--help", NULL, "show this help"},

@@ -36,7 +36,7 @@ static const cli_opt opts[] = {
 	{"--svg", "FILE", "also write the annotated plot to FILE (replaced atomically)"},
 	{"--block", "N", "compound JCAMP-DX file: use block N (1-based; default: the infrared one)"},
 	{"--max-bytes", "N", "refuse input files larger than N bytes (default 256 MiB)"},
-	{"--max-points", "N", "refuse spectra of more than N points (default 4,000,000)"},
+	{"--max-points", "N", "refuse spectra of more than N points (default 1,000,000)"},
 	{"--tables", "DIR", "group tables folder (default: the installed tables)"},
 	{"--add-table", "FILE", "an extra group table; repeatable"},
 	{"--request", "FILE", "run a JSON request (irrecon.request/1; '-' = stdin) and\n"

@@ -20,7 +20,7 @@ static const cli_opt opts[] = {
 	{"--peak-list", NULL, "FILE is a peak list (CSV or JSON), not a spectrum"},
 	{"--decimal-comma", NULL, "CSV: ',' is the decimal separator"},
 	{"--max-bytes", "N", "refuse files larger than N bytes (default 256 MiB)"},
-	{"--max-points", "N", "refuse spectra of more than N points (default 4,000,000)"},
+	{"--max-points", "N", "refuse spectra of more than N points (default 1,000,000)"},
 	{"--y-units", "UNITS", "CSV without a units header: absorbance, transmittance,\n"
 	                       "percent_transmittance, reflectance, kubelka_munk"},
 	{"--micrometres", NULL, "CSV: X is wavelength in micrometres"},

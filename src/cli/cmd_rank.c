@@ -32,7 +32,7 @@ static const cli_opt opts[] = {
 	{"--output", "FILE", "write to FILE (replaced atomically)"},
 	{"--block", "N", "compound JCAMP-DX file: use block N"},
 	{"--max-bytes", "N", "refuse input files larger than N bytes (default 256 MiB)"},
-	{"--max-points", "N", "refuse spectra of more than N points (default 4,000,000)"},
+	{"--max-points", "N", "refuse spectra of more than N points (default 1,000,000)"},
 	{"--tables", "DIR", "group tables folder"},
 	{"--add-table", "FILE", "an extra group table; repeatable"},
 	{"--help", NULL, "show this help"},
