@@ -34,7 +34,7 @@
 #define SPIKE_FWHM        6.0   /* narrower unexplained peaks never decide alone */
 #define CO_REGION_LOW     1660.0 /* C=O stretch region for carbonyl_where_none */
 #define CO_REGION_HIGH    1870.0
-#define CO_REGION_REL     0.10  /* ... from medium strength (peaks.h medium_frac) */
+#define CO_REGION_REL     0.05  /* ... relative height, weak bands included */
 #define CO_REGION_REL_ARENE 0.25 /* ... with an aromatic ring in the structure */
 #define HBOND_FWHM        150.0 /* an O-H/N-H band this wide is hydrogen-bonded */
 #define MAX_CANDIDATES    4
@@ -885,8 +885,8 @@ static int missing_decides(const irr_check *c, size_t i)
  * relative to the strongest, raised by half above 2500 cm-1 under ATR,
  * which weakens bands there (common practice), and more for a wide O-H/N-H
  * band when the structure has neither. */
-/* A band in the C=O stretch region (1660-1870 cm-1) at medium strength or
- * more, explained by nothing, when the structure has no C=O at all: that
+/* A band in the C=O stretch region (1660-1870 cm-1), even a weak one (0.05
+ * of the strongest), explained by nothing, when the structure has no C=O at all: that
  * region is empty for a compound without a carbonyl, so such a band means a
  * carbonyl impurity or a different structure. Common practice. The bounds
  * keep the H-O-H bend of water (~1640) out; an aromatic ring's combination
