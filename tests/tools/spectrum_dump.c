@@ -1,6 +1,9 @@
 /* spectrum_dump.c: prints a spectrum as irrecon reads it (before
  * normalisation), one "x y" pair per line with 17 significant digits, for
- * the cross-check against an independent JCAMP-DX reader. Test helper. */
+ * the cross-check against an independent JCAMP-DX reader. Test helper: it
+ * checks nothing itself; tests/scripts/jcamp_crosscheck.sh compares its
+ * output with the source of truth there, the npm package jcampconverter
+ * reading the same files of ../shared/ir-reference. */
 #include <stdio.h>
 #include <stdlib.h>
 

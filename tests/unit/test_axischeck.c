@@ -18,6 +18,8 @@
 #include <stdint.h>
 #include <cmocka.h>
 
+#include "unit/refdata.h"
+
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -120,12 +122,6 @@ static void missing_bands_are_not_found_never_passed(void **state)
 	assert_int_equal(irr_axis_report_resolved(r), 0);
 	assert_false(irr_axis_report_passed(r));
 	irr_axis_report_free(r);
-}
-
-static const char *refdir(void)
-{
-	const char *d = getenv("IRRECON_REFDIR");
-	return d && *d ? d : "../shared/ir-reference";
 }
 
 static irr_axis_report *check_file(const char *file)

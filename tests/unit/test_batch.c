@@ -22,15 +22,11 @@
 #include <unistd.h>
 #include <cmocka.h>
 
+#include "unit/refdata.h"
+
 #include <cjson/cJSON.h>
 
 #include "irrecon.h"
-
-static const char *refdir(void)
-{
-	const char *d = getenv("IRRECON_REFDIR");
-	return d && *d ? d : "../shared/ir-reference";
-}
 
 static irr_manifest *read_text(const char *text, const char *name, irr_manifest_format f)
 {
@@ -294,28 +290,6 @@ static void rows_become_requests(void **state)
 	assert_non_null(strstr(err.message, "unknown phase 'plasma'"));
 	irr_request_free(base);
 	irr_manifest_free(m);
-}
-
-static int published_sha256(const char *file, char hex[65])
-{
-	char path[1100], line[512];
-	FILE *f;
-	snprintf(path, sizeof path, "%s/SHA256SUMS", refdir());
-	f = fopen(path, "r");
-	if (!f)
-		return -1;
-	while (fgets(line, sizeof line, f)) {
-		char *name = line + 66;
-		name[strcspn(name, "\r\n")] = '\0';
-		if (strlen(line) > 66 && !strcmp(name, file)) {
-			memcpy(hex, line, 64);
-			hex[64] = '\0';
-			fclose(f);
-			return 0;
-		}
-	}
-	fclose(f);
-	return -1;
 }
 
 static void a_sample_runs_into_one_line(void **state)

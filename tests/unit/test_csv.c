@@ -23,13 +23,9 @@
 #include <unistd.h>
 #include <cmocka.h>
 
-#include "irrecon/spectrum.h"
+#include "unit/refdata.h"
 
-static const char *refdir(void)
-{
-	const char *d = getenv("IRRECON_REFDIR");
-	return d && *d ? d : "../shared/ir-reference";
-}
+#include "irrecon/spectrum.h"
 
 static irr_spectrum *read_text(const char *text, const irr_read_options *o)
 {

@@ -32,31 +32,11 @@
 #include <unistd.h>
 #include <cmocka.h>
 
+#include "unit/refdata.h"
+
 #include "irrecon/spectrum.h"
 
 /* ---- helpers ------------------------------------------------------------ */
-
-static const char *refdir(void)
-{
-	const char *d = getenv("IRRECON_REFDIR");
-	return d && *d ? d : "../shared/ir-reference";
-}
-
-static int have_refdir(void)
-{
-	char p[1100];
-	snprintf(p, sizeof p, "%s/MANIFEST.tsv", refdir());
-	return access(p, R_OK) == 0;
-}
-
-#define NEED_REFDIR()                                                               \
-	do {                                                                        \
-		if (!have_refdir()) {                                               \
-			print_message("skipped: reference spectra folder %s not found " \
-			              "(set IRRECON_REFDIR)\n", refdir());          \
-			skip();                                                     \
-		}                                                                   \
-	} while (0)
 
 static char *slurp(const char *path, size_t *len)
 {

@@ -27,24 +27,9 @@
 #include <unistd.h>
 #include <cmocka.h>
 
+#include "unit/refdata.h"
+
 #include "irrecon/spectrum.h"
-
-static const char *refdir(void)
-{
-	const char *d = getenv("IRRECON_REFDIR");
-	return d && *d ? d : "../shared/ir-reference";
-}
-
-#define NEED_REFDIR()                                                                    \
-	do {                                                                             \
-		char p_[1100];                                                           \
-		snprintf(p_, sizeof p_, "%s/MANIFEST.tsv", refdir());                    \
-		if (access(p_, R_OK) != 0) {                                             \
-			print_message("skipped: reference spectra folder %s not found " \
-			              "(set IRRECON_REFDIR)\n", refdir());               \
-			skip();                                                          \
-		}                                                                        \
-	} while (0)
 
 static irr_spectrum *make(const double *x, const double *y, size_t n, irr_yunits u)
 {

@@ -28,6 +28,8 @@
 #include <stdint.h>
 #include <cmocka.h>
 
+#include "unit/refdata.h"
+
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -462,12 +464,6 @@ static void non_uniform_axis_is_resampled(void **state)
 }
 
 /* ---- measured spectra ----------------------------------------------------- */
-
-static const char *refdir(void)
-{
-	const char *d = getenv("IRRECON_REFDIR");
-	return d && *d ? d : "../shared/ir-reference";
-}
 
 static irr_peaklist *pick_file(const char *file, irr_spectrum **sp)
 {

@@ -21,31 +21,11 @@
 #include <unistd.h>
 #include <cmocka.h>
 
+#include "unit/refdata.h"
+
 #include <cjson/cJSON.h>
 
 #include "irrecon.h"
-
-static const char *refdir(void)
-{
-	const char *d = getenv("IRRECON_REFDIR");
-	return d && *d ? d : "../shared/ir-reference";
-}
-
-static int have_refdir(void)
-{
-	char p[1100];
-	snprintf(p, sizeof p, "%s/acetophenone.jdx", refdir());
-	return access(p, R_OK) == 0;
-}
-
-#define NEED_REFDIR()                                                               \
-	do {                                                                        \
-		if (!have_refdir()) {                                               \
-			print_message("skipped: reference spectra folder %s not found " \
-			              "(set IRRECON_REFDIR)\n", refdir());          \
-			skip();                                                     \
-		}                                                                   \
-	} while (0)
 
 static int parse(irr_request **r, const char *text, irr_error *err)
 {
@@ -175,29 +155,6 @@ static void run_without_structure_fails(void **state)
 	assert_null(c);
 	assert_non_null(strstr(err.message, "no structure"));
 	irr_request_free(r);
-}
-
-/* The published digest of a file in the reference folder's SHA256SUMS. */
-static int published_sha256(const char *file, char hex[65])
-{
-	char path[1100], line[512];
-	FILE *f;
-	snprintf(path, sizeof path, "%s/SHA256SUMS", refdir());
-	f = fopen(path, "r");
-	if (!f)
-		return -1;
-	while (fgets(line, sizeof line, f)) {
-		char *name = line + 66;
-		name[strcspn(name, "\r\n")] = '\0';
-		if (strlen(line) > 66 && !strcmp(name, file)) {
-			memcpy(hex, line, 64);
-			hex[64] = '\0';
-			fclose(f);
-			return 0;
-		}
-	}
-	fclose(f);
-	return -1;
 }
 
 static char *json_of(const irr_check *c)
