@@ -121,6 +121,12 @@ int cli_read_option(const char *cmd, const char *opt, const char *v, irr_read_op
 char *cli_json_text(struct cJSON *root);
 
 /* Subcommands, one file each (cmd_<name>.c); listed in main.c. */
+int cmd_check(int argc, char **argv);
+int cmd_rank(int argc, char **argv);
 int cmd_predict(int argc, char **argv);
+int cmd_peaks(int argc, char **argv);
+int cmd_axis(int argc, char **argv);
+int cmd_synth(int argc, char **argv);
+int cmd_batch(int argc, char **argv);
 
 #endif

@@ -6,13 +6,6 @@
 #include "cli/cli.h"
 #include "irrecon/common.h"
 
-int cmd_check(int argc, char **argv);
-int cmd_peaks(int argc, char **argv);
-int cmd_axis(int argc, char **argv);
-int cmd_rank(int argc, char **argv);
-int cmd_synth(int argc, char **argv);
-int cmd_batch(int argc, char **argv);
-
 static const cli_command commands[] = {
 	{"check", cmd_check, "check a spectrum against a proposed structure (the main job)"},
 	{"rank", cmd_rank, "order candidate structures by how well they fit one spectrum"},
