@@ -200,35 +200,31 @@ int irr_spectrum_write_csv(char **out, size_t *len, const irr_spectrum *s,
 }
 
 /* SQZ, DIF and DUP forms of JCAMP-DX 4.24 (Table 2 of McDonald & Wilks):
- * the sign and first digit of a number fold into one letter. */
-static size_t enc_sqz(char *buf, long v)
+ * the sign and first digit of a number fold into one letter; SQZ uses
+ * @, A-I, a-i and DIF %, J-R, j-r. */
+static size_t enc_folded(char *buf, long v, char zero, char pos1, char neg1)
 {
 	char d[24];
 	size_t n;
 	if (v == 0) {
-		buf[0] = '@';
+		buf[0] = zero;
 		buf[1] = '\0';
 		return 1;
 	}
 	n = (size_t)snprintf(d, sizeof d, "%ld", v < 0 ? -v : v);
-	buf[0] = (char)((v > 0 ? 'A' : 'a') + (d[0] - '1'));
+	buf[0] = (char)((v > 0 ? pos1 : neg1) + (d[0] - '1'));
 	memcpy(buf + 1, d + 1, n);
 	return n;
 }
 
+static size_t enc_sqz(char *buf, long v)
+{
+	return enc_folded(buf, v, '@', 'A', 'a');
+}
+
 static size_t enc_dif(char *buf, long v)
 {
-	char d[24];
-	size_t n;
-	if (v == 0) {
-		buf[0] = '%';
-		buf[1] = '\0';
-		return 1;
-	}
-	n = (size_t)snprintf(d, sizeof d, "%ld", v < 0 ? -v : v);
-	buf[0] = (char)((v > 0 ? 'J' : 'j') + (d[0] - '1'));
-	memcpy(buf + 1, d + 1, n);
-	return n;
+	return enc_folded(buf, v, '%', 'J', 'j');
 }
 
 /* DUP counts the value itself: "A5U" is 15 three times. S..Z = 1..8, s = 9. */
