@@ -38,6 +38,9 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#ifdef __SSE2__
+#include <emmintrin.h>
+#endif
 
 #include "irrecon/spectrum.h"
 
@@ -333,16 +336,17 @@ static double noise_of(const double *dd, size_t a, size_t e, double *scratch, do
 	return 1.4826 * med / sqrt(6.0);
 }
 
-/* Lower convex hull of (x, y) by Andrew's monotone chain (x ascending),
- * linearly interpolated onto every point and taken off: c = y - hull,
- * r = raw - hull (r may be y's own storage: each point is read before it
- * is written). idx is scratch of n entries, hx and hy of n values (the
- * chain's vertices, so the turn test reads them without indirection). */
-static void hull_subtract(const double *x, const double *y, const double *raw, size_t n,
-                          double *c, double *r, size_t *idx, double *hx, double *hy)
+/* Andrew's monotone chain (Andrew 1979) over the points pts[0..m-1] (all
+ * points 0..m-1 when pts is NULL), x ascending: the lower hull's vertex
+ * indices go to idx and their coordinates to hx, hy (so the turn test
+ * reads them without indirection); their count is returned. Collinear
+ * points are popped (cross <= 0), so only strict vertices remain. */
+static size_t chain(const double *x, const double *y, const size_t *pts, size_t m,
+                    size_t *idx, double *hx, double *hy)
 {
 	size_t k = 0;
-	for (size_t i = 0; i < n; i++) {
+	for (size_t j = 0; j < m; j++) {
+		size_t i = pts ? pts[j] : j;
 		double xi = x[i], yi = y[i];
 		while (k >= 2) {
 			/* Pop b while it lies on or above the chord a-i. */
@@ -358,13 +362,146 @@ static void hull_subtract(const double *x, const double *y, const double *raw, s
 		hy[k] = yi;
 		k++;
 	}
+	return k;
+}
+
+/* Index of the lowest of y[a..e-1] (e > a; any of equal lowest ones).
+ * Four running minima side by side, each with its index, without
+ * branches: on noise, whether a point is the lowest so far is a coin
+ * toss. */
+static size_t argmin_block(const double *y, size_t a, size_t e)
+{
+	size_t i = a, mi = a;
+	double mv = y[a];
+#ifdef __SSE2__
+	if (e - a >= 8) {
+		__m128d v0 = _mm_loadu_pd(y + a), v1 = _mm_loadu_pd(y + a + 2);
+		__m128d i0 = _mm_set_pd((double)(a + 1), (double)a);
+		__m128d i1 = _mm_set_pd((double)(a + 3), (double)(a + 2));
+		__m128d j0 = i0, j1 = i1, four = _mm_set1_pd(4.0);
+		double lv[4], li[4];
+		for (i = a + 4; i + 4 <= e; i += 4) {
+			__m128d y0 = _mm_loadu_pd(y + i), y1 = _mm_loadu_pd(y + i + 2);
+			__m128d l0 = _mm_cmplt_pd(y0, v0), l1 = _mm_cmplt_pd(y1, v1);
+			j0 = _mm_add_pd(j0, four);
+			j1 = _mm_add_pd(j1, four);
+			v0 = _mm_or_pd(_mm_and_pd(l0, y0), _mm_andnot_pd(l0, v0));
+			v1 = _mm_or_pd(_mm_and_pd(l1, y1), _mm_andnot_pd(l1, v1));
+			i0 = _mm_or_pd(_mm_and_pd(l0, j0), _mm_andnot_pd(l0, i0));
+			i1 = _mm_or_pd(_mm_and_pd(l1, j1), _mm_andnot_pd(l1, i1));
+		}
+		_mm_storeu_pd(lv, v0);
+		_mm_storeu_pd(lv + 2, v1);
+		_mm_storeu_pd(li, i0);
+		_mm_storeu_pd(li + 2, i1);
+		mv = lv[0];
+		mi = (size_t)li[0];
+		for (int l = 1; l < 4; l++)
+			if (lv[l] < mv) {
+				mv = lv[l];
+				mi = (size_t)li[l];
+			}
+	}
+#endif
+	for (; i < e; i++)
+		if (y[i] < mv) {
+			mv = y[i];
+			mi = i;
+		}
+	return mi;
+}
+
+/* Lower convex hull of (x, y) (x ascending), linearly interpolated onto
+ * every point and taken off: c = y - hull, r = raw - hull (r may be y's
+ * own storage: each point is read before it is written). idx and pts are
+ * scratch of n entries, hx and hy of n values.
+ *
+ * On noise most points cannot be vertices, yet each costs the chain a pop
+ * loop of unpredictable length. So the chain runs on candidates only. The
+ * lower hull H_S of a subset S of the points (both ends and the lowest of
+ * every HULL_BLOCK points) lies on or above the full hull H, and a point
+ * above H_S lies above a chord between two points of S, so it is no vertex
+ * of H and the chain pops it. Every other point stays a candidate: the
+ * lower hull of the candidates is H, with the same vertices, found by the
+ * same chain; a margin far above the rounding of H_S (1e-9 of its largest
+ * value) and far below any noise keeps points that rounding could place on
+ * either side. The points above it never reach a turn test near zero. With
+ * values so large that the margin could overflow, all points are
+ * candidates. */
+#define HULL_BLOCK 32
+static void hull_subtract(const double *x, const double *y, const double *raw, size_t n,
+                          double *c, double *r, size_t *idx, size_t *pts, double *hx, double *hy)
+{
+	size_t k = 0, m = 0;
+	if (n >= 4 * HULL_BLOCK) {
+		double top = 0.0;
+		pts[m++] = 0;
+		for (size_t a = 0; a < n; a += HULL_BLOCK) {
+			size_t i = argmin_block(y, a, a + HULL_BLOCK < n ? a + HULL_BLOCK : n);
+			if (i != pts[m - 1])
+				pts[m++] = i;
+		}
+		if (pts[m - 1] != n - 1)
+			pts[m++] = n - 1;
+		k = chain(x, y, pts, m, idx, hx, hy);
+		for (size_t h = 0; h < k; h++)
+			if (fabs(hy[h]) > top)
+				top = fabs(hy[h]);
+		m = 0;
+		if (top < 1e100 && x[n - 1] - x[0] < 1e100) {
+			double margin = 1e-9 * top + 1e-300;
+			for (size_t h = 0; h + 1 < k; h++) {
+				size_t a = idx[h], e = h + 2 == k ? idx[h + 1] + 1 : idx[h + 1], i = a;
+				double xa = hx[h], ya = hy[h], slope = (hy[h + 1] - ya) / (hx[h + 1] - xa);
+#ifdef __SSE2__
+				__m128d vxa = _mm_set1_pd(xa), vya = _mm_set1_pd(ya);
+				__m128d vsl = _mm_set1_pd(slope), vmg = _mm_set1_pd(margin);
+				for (; i + 2 <= e; i += 2) {
+					__m128d lim = _mm_add_pd(_mm_add_pd(vya, _mm_mul_pd(vsl,
+					                  _mm_sub_pd(_mm_loadu_pd(x + i), vxa))), vmg);
+					int bits = _mm_movemask_pd(_mm_cmple_pd(_mm_loadu_pd(y + i), lim));
+					pts[m] = i;
+					m += (size_t)(bits & 1);
+					pts[m] = i + 1;
+					m += (size_t)(bits >> 1);
+				}
+#endif
+				for (; i < e; i++) {
+					pts[m] = i;
+					m += y[i] <= ya + slope * (x[i] - xa) + margin;
+				}
+			}
+			/* The ends are vertices whatever the rounding. */
+			if (m == 0 || pts[0] != 0) {
+				memmove(pts + 1, pts, m * sizeof *pts);
+				pts[0] = 0;
+				m++;
+			}
+			if (pts[m - 1] != n - 1)
+				pts[m++] = n - 1;
+			k = chain(x, y, pts, m, idx, hx, hy);
+		}
+	}
+	if (m == 0)
+		k = chain(x, y, NULL, n, idx, hx, hy);
 	for (size_t h = 0; h + 1 < k; h++) {
-		size_t a = idx[h], b = idx[h + 1];
+		size_t a = idx[h], b = idx[h + 1], i = a;
 		double slope = (y[b] - y[a]) / (x[b] - x[a]), ya = y[a], xa = x[a];
 		/* The vertex b is done by the next segment, as a is by this one:
-		 * each point once; the last segment also does its end. */
+		 * each point once; the last segment also does its end. Two
+		 * points at a time where SSE2 is there: the same operations in
+		 * each lane, so the same values. */
 		size_t end = h + 2 == k ? b + 1 : b;
-		for (size_t i = a; i < end; i++) {
+#ifdef __SSE2__
+		__m128d vxa = _mm_set1_pd(xa), vya = _mm_set1_pd(ya), vsl = _mm_set1_pd(slope);
+		for (; i + 2 <= end; i += 2) {
+			__m128d base = _mm_add_pd(vya, _mm_mul_pd(vsl, _mm_sub_pd(_mm_loadu_pd(x + i), vxa)));
+			__m128d vy = _mm_loadu_pd(y + i), vr = _mm_loadu_pd(raw + i);
+			_mm_storeu_pd(c + i, _mm_sub_pd(vy, base));
+			_mm_storeu_pd(r + i, _mm_sub_pd(vr, base));
+		}
+#endif
+		for (; i < end; i++) {
 			double base = ya + slope * (x[i] - xa);
 			c[i] = y[i] - base;
 			r[i] = raw[i] - base;
@@ -810,7 +947,7 @@ checked:
 	/* c: the smoothed trace above the baseline; r (s's storage, read
 	 * point by point before it is overwritten): the unsmoothed one. */
 	if (o->baseline) {
-		hull_subtract(w.x, w.s, w.y, n, w.c, w.r, w.stk, w.lb, w.rb);
+		hull_subtract(w.x, w.s, w.y, n, w.c, w.r, w.stk, w.stk2, w.lb, w.rb);
 	} else {
 		for (size_t i = 0; i < n; i++) {
 			w.c[i] = w.s[i] - 0.0;
