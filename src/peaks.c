@@ -518,37 +518,128 @@ static void hull_subtract(const double *x, const double *y, const double *raw, s
  * one side, a higher on the other) are skipped: they are no maximum, the
  * lowest point of a stretch is at one of its ends, and the first point
  * higher than a maximum, if skipped, lies on a slope whose far end is
- * higher still, with nothing lower in between. lb and rb are written only
- * where they are defined that way: at the points not skipped, which
- * include every maximum. tv, ti, sval and smin are scratch of n. The
- * interior maxima, ascending, go to mx; their count is returned. */
-static size_t prominence_bases(const double *c, size_t n, double *lb, double *rb,
-                               double *tv, size_t *ti, double *sval, double *smin,
-                               size_t *mx)
+ * higher still, with nothing lower in between.
+ *
+ * Only maxima at or above `floor` are wanted (the caller drops the others
+ * by height). A point below it can never be the higher ground of such a
+ * maximum, only part of a valley, so a run of consecutive points below it
+ * is one stack entry holding the run's minimum (its maxima are not even
+ * listed: each has a lower neighbour in the run): on a flat, noisy
+ * baseline the stack then does little. The lowest values, and so
+ * the bases of the wanted maxima, are exactly what they would be
+ * otherwise. lb and rb are written only where they are defined that way:
+ * at the points not skipped, which include every wanted maximum. tv, ti,
+ * sval, smin and sidx are scratch of n. The interior maxima at or above floor,
+ * ascending, go to mx; their count is returned. */
+static size_t prominence_bases(const double *c, size_t n, double floor, double *lb,
+                               double *rb, double *tv, size_t *ti, double *sval,
+                               double *smin, size_t *sidx, size_t *mx)
 {
-	size_t m = 0, top = 0, nmx = 0;
+	size_t m = 0, top = 0, nmx = 0, i = 1;
+	int nan = (c[0] != c[0]) | (c[n - 1] != c[n - 1]);
 	/* The points that matter, once for both directions: tv their values,
-	 * ti their indices (n >= 2); and on the way the maxima (c[i-1] < c[i]
-	 * >= c[i+1]) for the caller. Bitwise, not short-circuit: no branch to
-	 * mispredict. */
+	 * ti their indices (n >= 2); and on the way the wanted maxima (c[i-1]
+	 * < c[i] >= c[i+1]) for the caller. Bitwise, not short-circuit: no
+	 * branch to mispredict. For finite values v - a > 0 exactly when v >
+	 * a; a product that underflows to 0 (or overflows to NaN) only keeps
+	 * a point that could have been skipped, which changes nothing. */
 	tv[m] = c[0];
 	ti[m++] = 0;
-	for (size_t i = 1; i + 1 < n; i++) {
-		/* Strictly monotone through v: both steps of one strict sign.
-		 * For finite values v - a > 0 exactly when v > a; a product
-		 * that underflows to 0 (or overflows to NaN) only keeps a point
-		 * that could have been skipped, which changes nothing. */
+#ifdef __SSE2__
+	{
+		/* Two points at a time: the same tests, lane by lane. */
+		__m128d zero = _mm_setzero_pd(), fl = _mm_set1_pd(floor);
+		__m128d ones = _mm_cmpeq_pd(zero, zero), bad = zero;
+		for (; i + 2 < n; i += 2) {
+			__m128d v = _mm_loadu_pd(c + i);
+			bad = _mm_or_pd(bad, _mm_cmpunord_pd(v, v));
+			__m128d up = _mm_sub_pd(v, _mm_loadu_pd(c + i - 1));
+			__m128d next = _mm_sub_pd(_mm_loadu_pd(c + i + 1), v);
+			__m128d peak = _mm_and_pd(_mm_cmpgt_pd(up, zero), _mm_cmpngt_pd(next, zero));
+			__m128d high = _mm_cmpnlt_pd(v, fl);
+			int keep = _mm_movemask_pd(_mm_and_pd(_mm_cmpngt_pd(_mm_mul_pd(up, next), zero),
+			                                      _mm_or_pd(high, _mm_xor_pd(peak, ones))));
+			int top_ = _mm_movemask_pd(_mm_and_pd(peak, high));
+			tv[m] = c[i];
+			ti[m] = i;
+			mx[nmx] = i;
+			m += (size_t)(keep & 1);
+			nmx += (size_t)(top_ & 1);
+			tv[m] = c[i + 1];
+			ti[m] = i + 1;
+			mx[nmx] = i + 1;
+			m += (size_t)(keep >> 1);
+			nmx += (size_t)(top_ >> 1);
+		}
+		nan |= _mm_movemask_pd(bad) != 0;
+	}
+#endif
+	for (; i + 1 < n; i++) {
+		/* Strictly monotone through v: both steps of one strict sign. */
 		double v = c[i], up = v - c[i - 1], next = c[i + 1] - v;
+		int peak = (up > 0.0) & !(next > 0.0), high = !(v < floor);
 		tv[m] = v;
 		ti[m] = i;
 		mx[nmx] = i;
-		m += !(up * next > 0.0);
-		nmx += (up > 0.0) & !(next > 0.0);
+		m += (!(up * next > 0.0)) & (high | !peak);
+		nmx += peak & high;
+		nan |= v != v;
 	}
 	tv[m] = c[n - 1];
 	ti[m++] = n - 1;
-	for (size_t j = 0; j < m; j++) {
+	/* One pass for both sides. The stack holds values strictly
+	 * decreasing, each with the lowest value of its own segment (from
+	 * the entry below it, exclusive, to itself). A point v takes off
+	 * every entry t <= v: v is the first point at or above t to its
+	 * right, so the lowest value from t up to v is t's right base, the
+	 * lowest of t and of the segments of the entries taken off before it
+	 * (those lie between t and v). What is left below v is strictly
+	 * higher: v's left base is the lowest of v and of all the segments
+	 * taken off. The entries left at the end have no higher ground to
+	 * the right: their right bases reach the end. A NaN (only from
+	 * values near overflow) is never taken off and would leave the
+	 * entries below it without a right base: then a pass each way. */
+	for (size_t j = 0; j <= m && !nan; j++) {
+		double v = j < m ? tv[j] : HUGE_VAL, mn = v, run = HUGE_VAL;
+		if (v < floor) {
+			/* A run below floor: one entry with its minimum. Nothing
+			 * on the stack is that low (a point above floor took the
+			 * last run off), so it takes nothing off. */
+			while (j + 1 < m && tv[j + 1] < floor) {
+				double u = tv[++j];
+				mn = u < mn ? u : mn;
+			}
+			sval[top] = smin[top] = mn;
+			sidx[top] = ti[j];
+			top++;
+			continue;
+		}
+		while (top > 0 && sval[top - 1] <= v) {
+			double t = sval[top - 1];
+			top--;
+			rb[sidx[top]] = run < t ? run : t;
+			if (smin[top] < run)
+				run = smin[top];
+		}
+		if (j == m)
+			break;
+		lb[ti[j]] = run < mn ? run : mn;
+		sval[top] = v;
+		smin[top] = lb[ti[j]];
+		sidx[top] = ti[j];
+		top++;
+	}
+	for (size_t j = 0; j < m && nan; j++) {
 		double v = tv[j], mn = v;
+		if (v < floor) {
+			while (j + 1 < m && tv[j + 1] < floor) {
+				double u = tv[++j];
+				mn = u < mn ? u : mn;
+			}
+			sval[top] = smin[top] = mn;
+			top++;
+			continue;
+		}
 		while (top > 0 && sval[top - 1] <= v) {
 			if (smin[top - 1] < mn)
 				mn = smin[top - 1];
@@ -560,8 +651,17 @@ static size_t prominence_bases(const double *c, size_t n, double *lb, double *rb
 		top++;
 	}
 	top = 0;
-	for (size_t j = m; j-- > 0;) {
+	for (size_t j = m; nan && j-- > 0;) {
 		double v = tv[j], mn = v;
+		if (v < floor) {
+			while (j > 0 && tv[j - 1] < floor) {
+				double u = tv[--j];
+				mn = u < mn ? u : mn;
+			}
+			sval[top] = smin[top] = mn;
+			top++;
+			continue;
+		}
 		while (top > 0 && sval[top - 1] < v) {
 			if (smin[top - 1] < mn)
 				mn = smin[top - 1];
@@ -646,7 +746,7 @@ struct work {
 	double *s, *base, *c, *r, *d2, *lb, *rb, *smin, *scratch, *tv;
 	double *blk;         /* per block: raw, d2 levels, then their medians */
 	double *bsn, *bsd;   /* per block noise sd (raw) and of the 2nd derivative */
-	size_t *stk, *stk2, *mx;
+	size_t *stk, *stk2, *stk3, *mx;
 	unsigned char *keep;
 	unsigned char *satm; /* 1: in a saturated range; 2: within guard of one */
 	void *block;
@@ -844,7 +944,7 @@ checked:
 	{
 		size_t nd = uniform ? 10 : 12, bytes;
 		nb = (n + NOISE_BLOCK - 1) / NOISE_BLOCK;
-		bytes = (nd * n + 4 * nb) * sizeof(double) + 3 * n * sizeof(size_t) + 2 * n;
+		bytes = (nd * n + 4 * nb) * sizeof(double) + 4 * n * sizeof(size_t) + 2 * n;
 		w.block = malloc(bytes);
 		if (!w.block)
 			return irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
@@ -868,7 +968,8 @@ checked:
 		w.bsd = d; d += nb;
 		w.stk = (size_t *)d;
 		w.stk2 = w.stk + n;
-		w.mx = w.stk2 + n;
+		w.stk3 = w.stk2 + n;
+		w.mx = w.stk3 + n;
 		w.keep = (unsigned char *)(w.mx + n);
 		w.satm = w.keep + n;
 	}
@@ -1079,7 +1180,17 @@ checked:
 	}
 
 	/* Maxima by prominence. */
-	size_t nmx = prominence_bases(w.c, n, w.lb, w.rb, w.tv, w.stk2, w.base, w.smin, w.mx);
+	size_t nmx;
+	{
+		/* Maxima lower than the lowest height threshold are dropped
+		 * below whatever their prominence. */
+		double nmin = w.bsn[0];
+		for (size_t b = 1; b < nb; b++)
+			if (w.bsn[b] < nmin)
+				nmin = w.bsn[b];
+		nmx = prominence_bases(w.c, n, o->min_snr * nmin, w.lb, w.rb, w.tv, w.stk2,
+		                       w.base, w.smin, w.stk3, w.mx);
+	}
 	/* (base: free now) */
 	{
 		double hmax = 0.0;
@@ -1294,8 +1405,10 @@ checked:
 			size_t *sig = w.stk + nk, ns = 0; /* significant lobes, after kidx */
 			for (size_t i = 0; i < n; i++)
 				nd2[i] = -w.d2[i];
-			size_t nmx2 = prominence_bases(nd2, n, w.lb, w.rb, w.tv, w.stk2, w.base,
-			                               w.smin, w.mx);
+			/* Only lobes above zero count: the floor is the least
+			 * positive value. */
+			size_t nmx2 = prominence_bases(nd2, n, DBL_TRUE_MIN, w.lb, w.rb, w.tv, w.stk2,
+			                               w.base, w.smin, w.stk3, w.mx);
 			for (size_t k = 0; k < nmx2; k++) {
 				size_t i = w.mx[k];
 				if (!(nd2[i] > 0.0))
