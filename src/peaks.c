@@ -214,6 +214,10 @@ static double select_small(double *a, size_t n, size_t k)
 			p1 = t;
 		}
 		pivot = p2 < p0 ? p0 : p2 > p1 ? p1 : p2;
+		/* Nothing is below or equal to a NaN (values near overflow):
+		 * the range would never shrink. */
+		if (pivot != pivot)
+			return pivot;
 		for (size_t j = lo; j < hi; j++) {
 			double v = a[j];
 			a[j] = a[lt];
