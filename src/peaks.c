@@ -305,8 +305,23 @@ static double median_near(const double *src, size_t n, int absval, double near,
 	size_t k = n / 2;
 	if (near > 0.0) {
 		double lo = near / 1.5, hi = near * 1.5;
-		size_t below = 0, m = 0;
-		for (size_t i = 0; i < n; i++) {
+		size_t below = 0, m = 0, i = 0;
+#ifdef __SSE2__
+		/* Two values at a time, kept in their order. */
+		__m128d vlo = _mm_set1_pd(lo), vhi = _mm_set1_pd(hi);
+		__m128d sign = absval ? _mm_set1_pd(-0.0) : _mm_setzero_pd();
+		for (; i + 2 <= n; i += 2) {
+			__m128d v = _mm_andnot_pd(sign, _mm_loadu_pd(src + i));
+			int lt = _mm_movemask_pd(_mm_cmplt_pd(v, vlo));
+			int in = _mm_movemask_pd(_mm_and_pd(_mm_cmpge_pd(v, vlo), _mm_cmple_pd(v, vhi)));
+			_mm_storel_pd(scratch + m, v);
+			m += (size_t)(in & 1);
+			_mm_storeh_pd(scratch + m, v);
+			m += (size_t)(in >> 1);
+			below += (size_t)((lt & 1) + (lt >> 1));
+		}
+#endif
+		for (; i < n; i++) {
 			double v = absval ? fabs(src[i]) : src[i];
 			scratch[m] = v;
 			below += v < lo;
@@ -1081,7 +1096,37 @@ checked:
 		/* One pass: the range, the second differences (for the block and
 		 * global levels) and the smallest nonzero step (for the
 		 * quantisation floor below). */
-		for (size_t i = 0; i + 1 < n; i++) {
+		size_t i = 0;
+#ifdef __SSE2__
+		/* Two points at a time, each lane with the scalar operations;
+		 * the extremes and the least step are the same values in any
+		 * order. */
+		{
+			__m128d vlo = _mm_set1_pd(lo), vhi = vlo, vq = _mm_set1_pd(HUGE_VAL);
+			__m128d two = _mm_set1_pd(2.0), sign = _mm_set1_pd(-0.0), zero = _mm_setzero_pd();
+			double t[2];
+			for (i = 1; i + 2 < n; i += 2) {
+				__m128d a = _mm_loadu_pd(w.y + i - 1), v = _mm_loadu_pd(w.y + i);
+				__m128d b = _mm_loadu_pd(w.y + i + 1);
+				__m128d d = _mm_andnot_pd(sign, _mm_sub_pd(b, v)), pos = _mm_cmpgt_pd(d, zero);
+				vlo = _mm_min_pd(v, vlo);
+				vhi = _mm_max_pd(v, vhi);
+				vq = _mm_min_pd(_mm_or_pd(_mm_and_pd(pos, d), _mm_andnot_pd(pos, vq)), vq);
+				_mm_storeu_pd(dd + i, _mm_andnot_pd(sign, _mm_add_pd(_mm_sub_pd(a,
+				                      _mm_mul_pd(two, v)), b)));
+			}
+			_mm_storeu_pd(t, vlo);
+			lo = t[0] < t[1] ? t[0] : t[1];
+			_mm_storeu_pd(t, vhi);
+			hi = t[0] > t[1] ? t[0] : t[1];
+			_mm_storeu_pd(t, vq);
+			q = t[0] < t[1] ? t[0] : t[1];
+			double d = fabs(w.y[1] - w.y[0]);
+			if (d > 0.0 && d < q)
+				q = d;
+		}
+#endif
+		for (; i + 1 < n; i++) {
 			double v = w.y[i], d = fabs(w.y[i + 1] - v);
 			if (v < lo)
 				lo = v;
