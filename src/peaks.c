@@ -1186,19 +1186,55 @@ checked:
 	 * band (iterated, starting from the band itself) is the noise's own
 	 * centre; it is taken off the trace. Without noise it is 0. */
 	if (o->baseline) {
-		double off = 0.0, gain0 = irr_sg__noise_gain(half, order, 0);
+		double off = 0.0, gain0 = irr_sg__noise_gain(half, order, 0), kmax = 0.0;
+		/* The points taken are gathered in order without branches
+		 * (whether a point lies below the threshold is a coin toss on
+		 * noise), then summed in that order: the same sum. A threshold
+		 * exceeds the first one by at most the mean found before it, so
+		 * after the first pass only the points below twice the largest
+		 * step above their own (cand, with their block starts in cstart)
+		 * can be taken; a block whose threshold came out above that
+		 * bound after all is scanned whole. */
+		double *sel = w.scratch, *cand = w.tv, *bound = w.base;
+		size_t *cstart = w.stk, nc = 0;
+		for (size_t b = 0; b < nb; b++)
+			if (2.5 * gain0 * w.bsn[b] > kmax)
+				kmax = 2.5 * gain0 * w.bsn[b];
 		for (int it = 0; it < 3; it++) {
 			double sum = 0.0;
 			size_t cnt = 0;
 			for (size_t b = 0; b < nb; b++) {
 				double thr = off + 2.5 * gain0 * w.bsn[b];
-				size_t e = (b + 1) * NOISE_BLOCK < n ? (b + 1) * NOISE_BLOCK : n;
-				for (size_t i = b * NOISE_BLOCK; i < e; i++)
-					if (w.c[i] < thr && !(w.satm[i] & 1)) {
-						sum += w.c[i];
-						cnt++;
+				size_t a = b * NOISE_BLOCK, e = (b + 1) * NOISE_BLOCK < n ? (b + 1) * NOISE_BLOCK : n;
+				if (it == 0) {
+					double u = 2.5 * gain0 * w.bsn[b] + 2.0 * kmax;
+					bound[b] = u;
+					cstart[b] = nc;
+					for (size_t i = a; i < e; i++) {
+						double v = w.c[i];
+						int ok = !(w.satm[i] & 1);
+						sel[cnt] = v;
+						cnt += (size_t)((v < thr) & ok);
+						cand[nc] = v;
+						nc += (size_t)((v < u) & ok);
 					}
+				} else if (thr <= bound[b]) {
+					size_t ce = b + 1 < nb ? cstart[b + 1] : nc;
+					for (size_t j = cstart[b]; j < ce; j++) {
+						double v = cand[j];
+						sel[cnt] = v;
+						cnt += v < thr;
+					}
+				} else {
+					for (size_t i = a; i < e; i++) {
+						double v = w.c[i];
+						sel[cnt] = v;
+						cnt += (size_t)((v < thr) & !(w.satm[i] & 1));
+					}
+				}
 			}
+			for (size_t j = 0; j < cnt; j++)
+				sum += sel[j];
 			off = cnt ? sum / (double)cnt : 0.0;
 		}
 		if (off > 0.0)
