@@ -909,17 +909,39 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 	med = (x0[n0 - 1] - x0[0]) / (double)(n0 - 1);
 	{
 		/* Fast check first: a strictly ascending axis with finite ends is
-		 * finite throughout, and y*0 is 0 for every finite y (NaN else).
-		 * Only when it fails does the loop below find the point to name. */
-		int ok = isfinite(x0[0]) && isfinite(x0[n0 - 1]);
-		double z = y0[0] * 0.0;
-		for (size_t i = 1; i < n0; i++) {
+		 * finite throughout, and |y| <= DBL_MAX holds for every finite y
+		 * (not for NaN or infinity). Only when it fails does the loop
+		 * below find the point to name. */
+		int ok = isfinite(x0[0]) && isfinite(x0[n0 - 1]), fin = fabs(y0[0]) <= DBL_MAX;
+		size_t i = 1;
+#ifdef __SSE2__
+		/* Two points at a time, the same comparisons; no chain of
+		 * additions to wait on. */
+		{
+			__m128d vok = _mm_cmpeq_pd(_mm_setzero_pd(), _mm_setzero_pd()), vfin = vok;
+			__m128d vnu = _mm_setzero_pd(), vmed = _mm_set1_pd(med);
+			__m128d vtol = _mm_set1_pd(0.02 * med), sign = _mm_set1_pd(-0.0);
+			__m128d big = _mm_set1_pd(DBL_MAX);
+			for (; i + 2 <= n0; i += 2) {
+				__m128d a = _mm_loadu_pd(x0 + i - 1), b = _mm_loadu_pd(x0 + i);
+				vok = _mm_and_pd(vok, _mm_cmpgt_pd(b, a));
+				vnu = _mm_or_pd(vnu, _mm_cmpgt_pd(_mm_andnot_pd(sign, _mm_sub_pd(_mm_sub_pd(b, a),
+				                                                          vmed)), vtol));
+				vfin = _mm_and_pd(vfin, _mm_cmple_pd(_mm_andnot_pd(sign, _mm_loadu_pd(y0 + i)), big));
+			}
+			ok &= _mm_movemask_pd(vok) == 3;
+			fin &= _mm_movemask_pd(vfin) == 3;
+			if (_mm_movemask_pd(vnu))
+				uniform = 0;
+		}
+#endif
+		for (; i < n0; i++) {
 			ok &= x0[i] > x0[i - 1];
 			if (fabs((x0[i] - x0[i - 1]) - med) > 0.02 * med)
 				uniform = 0;
-			z += y0[i] * 0.0;
+			fin &= fabs(y0[i]) <= DBL_MAX;
 		}
-		if (ok && z == 0.0)
+		if (ok && fin)
 			goto checked;
 		uniform = 1;
 	}
@@ -1237,11 +1259,20 @@ checked:
 				sum += sel[j];
 			off = cnt ? sum / (double)cnt : 0.0;
 		}
-		if (off > 0.0)
-			for (size_t i = 0; i < n; i++) {
+		if (off > 0.0) {
+			size_t i = 0;
+#ifdef __SSE2__
+			__m128d vo = _mm_set1_pd(off);
+			for (; i + 2 <= n; i += 2) {
+				_mm_storeu_pd(w.c + i, _mm_sub_pd(_mm_loadu_pd(w.c + i), vo));
+				_mm_storeu_pd(w.r + i, _mm_sub_pd(_mm_loadu_pd(w.r + i), vo));
+			}
+#endif
+			for (; i < n; i++) {
 				w.c[i] -= off;
 				w.r[i] -= off;
 			}
+		}
 	}
 
 	pl = irr_peaks__new();
