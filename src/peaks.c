@@ -251,21 +251,31 @@ static double select_small(double *a, size_t n, size_t k)
  * the input and the plain search runs on all of it. */
 #define SELECT_SAMPLE 511
 #define SELECT_GAP 36 /* about 3 sd of the sample rank of the k-th value */
+/* select_kth's bracket for the k-th of a[0..n-1] (n >= 2 * SELECT_SAMPLE):
+ * two order statistics of an evenly spaced sample. */
+static void kth_bracket(const double *a, size_t n, size_t k, double *lo, double *hi)
+{
+	double smp[SELECT_SAMPLE];
+	size_t step = n / SELECT_SAMPLE, r = (size_t)((double)k * SELECT_SAMPLE / (double)n);
+	size_t rlo = r > SELECT_GAP ? r - SELECT_GAP : 0;
+	size_t rhi = r + SELECT_GAP < SELECT_SAMPLE - 1 ? r + SELECT_GAP : SELECT_SAMPLE - 1;
+	*lo = -HUGE_VAL;
+	*hi = HUGE_VAL;
+	for (size_t j = 0; j < SELECT_SAMPLE; j++)
+		smp[j] = a[j * step];
+	if (rlo > 0)
+		*lo = select_small(smp, SELECT_SAMPLE, rlo);
+	if (rhi < SELECT_SAMPLE - 1)
+		*hi = rlo > 0 ? select_small(smp + rlo, SELECT_SAMPLE - rlo, rhi - rlo)
+		              : select_small(smp, SELECT_SAMPLE, rhi);
+}
+
 static double select_kth(double *a, size_t n, size_t k)
 {
 	if (n >= 2 * SELECT_SAMPLE) {
-		double smp[SELECT_SAMPLE], lo = -HUGE_VAL, hi = HUGE_VAL;
-		size_t step = n / SELECT_SAMPLE, r = (size_t)((double)k * SELECT_SAMPLE / (double)n);
-		size_t rlo = r > SELECT_GAP ? r - SELECT_GAP : 0;
-		size_t rhi = r + SELECT_GAP < SELECT_SAMPLE - 1 ? r + SELECT_GAP : SELECT_SAMPLE - 1;
+		double lo, hi;
 		size_t below = 0, m = 0;
-		for (size_t j = 0; j < SELECT_SAMPLE; j++)
-			smp[j] = a[j * step];
-		if (rlo > 0)
-			lo = select_small(smp, SELECT_SAMPLE, rlo);
-		if (rhi < SELECT_SAMPLE - 1)
-			hi = rlo > 0 ? select_small(smp + rlo, SELECT_SAMPLE - rlo, rhi - rlo)
-			             : select_small(smp, SELECT_SAMPLE, rhi);
+		kth_bracket(a, n, k, &lo, &hi);
 		/* Without branches (their outcome is a coin toss here): a[i]
 		 * and a[m] always trade places, and m moves on only past a value
 		 * inside, so a[0..m-1] are those and a stays a permutation. */
@@ -282,6 +292,14 @@ static double select_kth(double *a, size_t n, size_t k)
 	return select_small(a, n, k);
 }
 
+/* select_kth's pass for a long array seen in consecutive pieces (by
+ * median_near, which reads them anyway): what lies below the bracket is
+ * counted, what lies inside gathered in order into buf. */
+typedef struct kth_gather {
+	double lo, hi, *buf;
+	size_t below, m;
+} kth_gather;
+
 static double median_inplace(double *a, size_t n)
 {
 	if (n == 0)
@@ -296,41 +314,77 @@ static double median_inplace(double *a, size_t n)
  * copies what lies inside to scratch (branch-free: the outcome of each
  * comparison is a coin toss), and only those are searched. When the guess
  * misses (or there is none), all of src is copied and searched. The value
- * is the same either way. */
+ * is the same either way. With g, the same pass does g's share of a
+ * selection over a longer array. */
 static double median_near(const double *src, size_t n, int absval, double near,
-                          double *scratch)
+                          double *scratch, kth_gather *g)
 {
 	if (n == 0)
 		return 0.0;
-	size_t k = n / 2;
-	if (near > 0.0) {
-		double lo = near / 1.5, hi = near * 1.5;
-		size_t below = 0, m = 0, i = 0;
+	size_t k = n / 2, below = 0, m = 0, i = 0;
+	double lo = near > 0.0 ? near / 1.5 : HUGE_VAL, hi = near > 0.0 ? near * 1.5 : -HUGE_VAL;
+	if (!g && !(near > 0.0))
+		goto all;
 #ifdef __SSE2__
-		/* Two values at a time, kept in their order. */
+	{
+		/* Two values at a time, kept in their order; the counts add up
+		 * the comparisons' all-ones lanes (-1 each). */
 		__m128d vlo = _mm_set1_pd(lo), vhi = _mm_set1_pd(hi);
+		__m128d glo = _mm_set1_pd(g ? g->lo : 0.0), ghi = _mm_set1_pd(g ? g->hi : 0.0);
 		__m128d sign = absval ? _mm_set1_pd(-0.0) : _mm_setzero_pd();
-		for (; i + 2 <= n; i += 2) {
-			__m128d v = _mm_andnot_pd(sign, _mm_loadu_pd(src + i));
-			int lt = _mm_movemask_pd(_mm_cmplt_pd(v, vlo));
-			int in = _mm_movemask_pd(_mm_and_pd(_mm_cmpge_pd(v, vlo), _mm_cmple_pd(v, vhi)));
-			_mm_storel_pd(scratch + m, v);
-			m += (size_t)(in & 1);
-			_mm_storeh_pd(scratch + m, v);
-			m += (size_t)(in >> 1);
-			below += (size_t)((lt & 1) + (lt >> 1));
+		__m128i nb = _mm_setzero_si128(), ngb = nb;
+		long long t[2];
+		if (g) {
+			double *gb = g->buf;
+			size_t gm = g->m;
+			for (; i + 2 <= n; i += 2) {
+				__m128d v = _mm_andnot_pd(sign, _mm_loadu_pd(src + i));
+				int in = _mm_movemask_pd(_mm_and_pd(_mm_cmpge_pd(v, vlo), _mm_cmple_pd(v, vhi)));
+				int gin = _mm_movemask_pd(_mm_and_pd(_mm_cmpge_pd(v, glo), _mm_cmple_pd(v, ghi)));
+				nb = _mm_sub_epi64(nb, _mm_castpd_si128(_mm_cmplt_pd(v, vlo)));
+				ngb = _mm_sub_epi64(ngb, _mm_castpd_si128(_mm_cmplt_pd(v, glo)));
+				_mm_storel_pd(scratch + m, v);
+				m += (size_t)(in & 1);
+				_mm_storeh_pd(scratch + m, v);
+				m += (size_t)(in >> 1);
+				_mm_storel_pd(gb + gm, v);
+				gm += (size_t)(gin & 1);
+				_mm_storeh_pd(gb + gm, v);
+				gm += (size_t)(gin >> 1);
+			}
+			g->m = gm;
+			_mm_storeu_si128((__m128i *)t, ngb);
+			g->below += (size_t)(t[0] + t[1]);
+		} else {
+			for (; i + 2 <= n; i += 2) {
+				__m128d v = _mm_andnot_pd(sign, _mm_loadu_pd(src + i));
+				int in = _mm_movemask_pd(_mm_and_pd(_mm_cmpge_pd(v, vlo), _mm_cmple_pd(v, vhi)));
+				nb = _mm_sub_epi64(nb, _mm_castpd_si128(_mm_cmplt_pd(v, vlo)));
+				_mm_storel_pd(scratch + m, v);
+				m += (size_t)(in & 1);
+				_mm_storeh_pd(scratch + m, v);
+				m += (size_t)(in >> 1);
+			}
 		}
-#endif
-		for (; i < n; i++) {
-			double v = absval ? fabs(src[i]) : src[i];
-			scratch[m] = v;
-			below += v < lo;
-			m += (v >= lo) & (v <= hi);
-		}
-		if (below <= k && k < below + m)
-			return select_small(scratch, m, k - below);
+		_mm_storeu_si128((__m128i *)t, nb);
+		below = (size_t)(t[0] + t[1]);
 	}
-	for (size_t i = 0; i < n; i++)
+#endif
+	for (; i < n; i++) {
+		double v = absval ? fabs(src[i]) : src[i];
+		scratch[m] = v;
+		below += v < lo;
+		m += (v >= lo) & (v <= hi);
+		if (g) {
+			g->buf[g->m] = v;
+			g->below += v < g->lo;
+			g->m += (v >= g->lo) & (v <= g->hi);
+		}
+	}
+	if (near > 0.0 && below <= k && k < below + m)
+		return select_small(scratch, m, k - below);
+all:
+	for (i = 0; i < n; i++)
 		scratch[i] = absval ? fabs(src[i]) : src[i];
 	return select_small(scratch, n, k);
 }
@@ -340,14 +394,15 @@ static double median_near(const double *src, size_t n, int absval, double near,
  * dd[i] holds |d| centred on i (computed once for the global level and all
  * blocks); the median of dd[a..e-1] is taken in scratch. With `near`, a
  * neighbouring block's median guides the search, and this one's is left
- * there for the next. */
-static double noise_of(const double *dd, size_t a, size_t e, double *scratch, double *near)
+ * there for the next; g, if given, gets its share of a longer selection. */
+static double noise_of(const double *dd, size_t a, size_t e, double *scratch, double *near,
+                       kth_gather *g)
 {
 	double med;
 	if (e <= a)
 		return 0.0;
 	if (near) {
-		med = *near = median_near(dd + a, e - a, 0, *near, scratch);
+		med = *near = median_near(dd + a, e - a, 0, *near, scratch, g);
 	} else {
 		memcpy(scratch, dd + a, (e - a) * sizeof *scratch);
 		med = median_inplace(scratch, e - a);
@@ -1166,13 +1221,30 @@ checked:
 		range = hi - lo;
 		/* Block raw levels (second differences centred in the block),
 		 * then the global level. */
-		for (size_t b = 0; b < nb; b++) {
-			size_t a = b * NOISE_BLOCK, e = a + NOISE_BLOCK;
-			if (e > n - 1)
-				e = n - 1;
-			bn[b] = noise_of(dd, a > 0 ? a : 1, e, w.scratch, &near);
+		{
+			/* The blocks cover dd[1..n-2], whose median is the global
+			 * level: its selection (select_kth) gathers its candidates
+			 * in the blocks' passes, in the same order; it falls back
+			 * to its own pass when its bracket misses. */
+			size_t nd = n - 2, kd = nd / 2;
+			kth_gather g, *gp = NULL;
+			if (nd >= 2 * SELECT_SAMPLE) {
+				kth_bracket(dd + 1, nd, kd, &g.lo, &g.hi);
+				g.buf = w.rb;
+				g.below = g.m = 0;
+				gp = &g;
+			}
+			for (size_t b = 0; b < nb; b++) {
+				size_t a = b * NOISE_BLOCK, e = a + NOISE_BLOCK;
+				if (e > n - 1)
+					e = n - 1;
+				bn[b] = noise_of(dd, a > 0 ? a : 1, e, w.scratch, &near, gp);
+			}
+			if (gp && g.below <= kd && kd < g.below + g.m)
+				sigma = 1.4826 * select_small(g.buf, g.m, kd - g.below) / sqrt(6.0);
+			else
+				sigma = noise_of(dd, 1, n - 1, w.scratch, NULL, NULL);
 		}
-		sigma = noise_of(dd, 1, n - 1, w.scratch, NULL);
 		if (sigma < 1e-5 * range)
 			sigma = 1e-5 * range;
 		/* Quantised data without visible noise (a flat run of one stored
@@ -1189,7 +1261,7 @@ checked:
 				e = n;
 			double sb = bn[b];
 			bn[b] = sb > sigma ? sb : sigma;
-			near2 = median_near(w.d2 + a, e - a, 1, near2, w.scratch);
+			near2 = median_near(w.d2 + a, e - a, 1, near2, w.scratch, NULL);
 			sb = 1.4826 * near2;
 			bd[b] = sb > sigma * gain2 ? sb : sigma * gain2;
 			if (bn[b] < bd[b] / gain2)
