@@ -1302,9 +1302,27 @@ checked:
 				size_t a = b * NOISE_BLOCK, e = (b + 1) * NOISE_BLOCK < n ? (b + 1) * NOISE_BLOCK : n;
 				if (it == 0) {
 					double u = 2.5 * gain0 * w.bsn[b] + 2.0 * kmax;
+					size_t i = a;
 					bound[b] = u;
 					cstart[b] = nc;
-					for (size_t i = a; i < e; i++) {
+#ifdef __SSE2__
+					/* Two at a time where nothing is saturated. */
+					__m128d vt = _mm_set1_pd(thr), vu = _mm_set1_pd(u);
+					for (; !nsat && i + 2 <= e; i += 2) {
+						__m128d v = _mm_loadu_pd(w.c + i);
+						int lt = _mm_movemask_pd(_mm_cmplt_pd(v, vt));
+						int lu = _mm_movemask_pd(_mm_cmplt_pd(v, vu));
+						_mm_storel_pd(sel + cnt, v);
+						cnt += (size_t)(lt & 1);
+						_mm_storeh_pd(sel + cnt, v);
+						cnt += (size_t)(lt >> 1);
+						_mm_storel_pd(cand + nc, v);
+						nc += (size_t)(lu & 1);
+						_mm_storeh_pd(cand + nc, v);
+						nc += (size_t)(lu >> 1);
+					}
+#endif
+					for (; i < e; i++) {
 						double v = w.c[i];
 						int ok = !(w.satm[i] & 1);
 						sel[cnt] = v;
@@ -1313,8 +1331,19 @@ checked:
 						nc += (size_t)((v < u) & ok);
 					}
 				} else if (thr <= bound[b]) {
-					size_t ce = b + 1 < nb ? cstart[b + 1] : nc;
-					for (size_t j = cstart[b]; j < ce; j++) {
+					size_t ce = b + 1 < nb ? cstart[b + 1] : nc, j = cstart[b];
+#ifdef __SSE2__
+					__m128d vt = _mm_set1_pd(thr);
+					for (; j + 2 <= ce; j += 2) {
+						__m128d v = _mm_loadu_pd(cand + j);
+						int lt = _mm_movemask_pd(_mm_cmplt_pd(v, vt));
+						_mm_storel_pd(sel + cnt, v);
+						cnt += (size_t)(lt & 1);
+						_mm_storeh_pd(sel + cnt, v);
+						cnt += (size_t)(lt >> 1);
+					}
+#endif
+					for (; j < ce; j++) {
 						double v = cand[j];
 						sel[cnt] = v;
 						cnt += v < thr;
