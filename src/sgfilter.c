@@ -227,14 +227,13 @@ int irr_sg__apply(const double *y, size_t n, int half, int order, int deriv,
 }
 
 #ifdef SG_AVX
-/* The centre loop of irr_sg__smooth_d2 four outputs at a time (AVX; no
- * fused multiply-add, so each lane does the scalar operations in their
- * order). Returns the first index it did not do. */
+/* The centre loop of irr_sg__smooth_d2 four outputs at a time from i0
+ * (AVX; no fused multiply-add, so each lane does the scalar operations in
+ * their order). Returns the first index it did not do. */
 __attribute__((target("avx")))
-static size_t centre_avx(const double *y, size_t n, size_t h, const double *c0,
+static size_t centre_avx(const double *y, size_t n, size_t h, size_t i0, const double *c0,
                          const double *c2, double *s0, double *s2)
 {
-	size_t i0 = h;
 	__m256d k0[51], k2[51];
 	for (size_t k = 0; k <= h; k++) {
 		k0[k] = _mm256_set1_pd(c0[h + k]);
@@ -250,6 +249,27 @@ static size_t centre_avx(const double *y, size_t n, size_t h, const double *c0,
 		}
 		_mm256_storeu_pd(s0 + i0, a0);
 		_mm256_storeu_pd(s2 + i0, a2);
+	}
+	return i0;
+}
+
+/* The same, eight outputs at a time (AVX-512F). */
+__attribute__((target("avx512f")))
+static size_t centre_avx512(const double *y, size_t n, size_t h, const double *c0,
+                            const double *c2, double *s0, double *s2)
+{
+	size_t i0 = h;
+	for (; i0 + 7 + h < n; i0 += 8) {
+		__m512d yi = _mm512_loadu_pd(y + i0);
+		__m512d a0 = _mm512_mul_pd(_mm512_set1_pd(c0[h]), yi);
+		__m512d a2 = _mm512_mul_pd(_mm512_set1_pd(c2[h]), yi);
+		for (size_t k = 1; k <= h; k++) {
+			__m512d f = _mm512_add_pd(_mm512_loadu_pd(y + i0 - k), _mm512_loadu_pd(y + i0 + k));
+			a0 = _mm512_add_pd(a0, _mm512_mul_pd(_mm512_set1_pd(c0[h + k]), f));
+			a2 = _mm512_add_pd(a2, _mm512_mul_pd(_mm512_set1_pd(c2[h + k]), f));
+		}
+		_mm512_storeu_pd(s0 + i0, a0);
+		_mm512_storeu_pd(s2 + i0, a2);
 	}
 	return i0;
 }
@@ -270,15 +290,17 @@ int irr_sg__smooth_d2(const double *y, size_t n, int half, int order, double *s0
 	fit_coefficients(&F, 2, 0, c2);
 	h = (size_t)half;
 	/* Both centre sets are symmetric (even derivatives): fold the window
-	 * once, y[i-k] + y[i+k], and use it for both outputs. Four (AVX, where
-	 * the processor has it) or two (SSE2) neighbouring outputs at a time,
-	 * each lane with the scalar loop's own operations in its order, so
-	 * the sums are the same to the bit. */
+	 * once, y[i-k] + y[i+k], and use it for both outputs. Eight (AVX-512),
+	 * four (AVX, where the processor has them) or two (SSE2) neighbouring
+	 * outputs at a time, each lane with the scalar loop's own operations
+	 * in its order, so the sums are the same to the bit. */
 	size_t i0 = h;
 #ifdef SG_AVX
 	__builtin_cpu_init();
+	if (__builtin_cpu_supports("avx512f"))
+		i0 = centre_avx512(y, n, h, c0, c2, s0, s2);
 	if (__builtin_cpu_supports("avx"))
-		i0 = centre_avx(y, n, h, c0, c2, s0, s2);
+		i0 = centre_avx(y, n, h, i0, c0, c2, s0, s2);
 #endif
 #ifdef __SSE2__
 	{
