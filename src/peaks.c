@@ -41,6 +41,10 @@
 #ifdef __SSE2__
 #include <emmintrin.h>
 #endif
+#if defined(__x86_64__) && defined(__GNUC__)
+#include <immintrin.h>
+#define PK_AVX512 1
+#endif
 
 #include "irrecon/spectrum.h"
 
@@ -583,6 +587,45 @@ static void hull_subtract(const double *x, const double *y, const double *raw, s
 	}
 }
 
+#ifdef PK_AVX512
+/* prominence_bases' gathering pass eight points at a time from i (AVX-512F
+ * compress stores; the same tests, lane by lane). Returns the first index
+ * not done; *pm, *pnmx and *nan carry on. */
+__attribute__((target("avx512f,popcnt")))
+static size_t gather_avx512(const double *c, size_t n, size_t i, double floor, double *tv,
+                            size_t *ti, size_t *mx, size_t *pm, size_t *pnmx, int *nan)
+{
+	size_t m = *pm, nmx = *pnmx;
+	__m512d zero = _mm512_setzero_pd(), fl = _mm512_set1_pd(floor);
+	__m512i idx = _mm512_add_epi64(_mm512_set1_epi64((long long)i),
+	                               _mm512_set_epi64(7, 6, 5, 4, 3, 2, 1, 0));
+	__m512i eight = _mm512_set1_epi64(8);
+	__mmask8 bad = 0;
+	for (; i + 8 < n; i += 8) {
+		__m512d v = _mm512_loadu_pd(c + i);
+		__m512d up = _mm512_sub_pd(v, _mm512_loadu_pd(c + i - 1));
+		__m512d next = _mm512_sub_pd(_mm512_loadu_pd(c + i + 1), v);
+		__mmask8 peak = _mm512_cmp_pd_mask(up, zero, _CMP_GT_OQ) &
+		                _mm512_cmp_pd_mask(next, zero, _CMP_NGT_UQ);
+		__mmask8 high = _mm512_cmp_pd_mask(v, fl, _CMP_NLT_UQ);
+		__mmask8 keep = _mm512_cmp_pd_mask(_mm512_mul_pd(up, next), zero, _CMP_NGT_UQ) &
+		                (high | (__mmask8)~peak);
+		__mmask8 top = peak & high;
+		bad |= _mm512_cmp_pd_mask(v, v, _CMP_UNORD_Q);
+		_mm512_mask_compressstoreu_pd(tv + m, keep, v);
+		_mm512_mask_compressstoreu_epi64(ti + m, keep, idx);
+		_mm512_mask_compressstoreu_epi64(mx + nmx, top, idx);
+		m += (size_t)__builtin_popcount(keep);
+		nmx += (size_t)__builtin_popcount(top);
+		idx = _mm512_add_epi64(idx, eight);
+	}
+	*pm = m;
+	*pnmx = nmx;
+	*nan |= bad != 0;
+	return i;
+}
+#endif
+
 /* Bases for topographic prominence. For every maximum i, lb[i] = the
  * lowest value between i and the nearest point to its left that is
  * strictly higher (or the start), rb[i] likewise to the right (nearest
@@ -619,6 +662,11 @@ static size_t prominence_bases(const double *c, size_t n, double floor, double *
 	 * a point that could have been skipped, which changes nothing. */
 	tv[m] = c[0];
 	ti[m++] = 0;
+#ifdef PK_AVX512
+	__builtin_cpu_init();
+	if (__builtin_cpu_supports("avx512f") && __builtin_cpu_supports("popcnt"))
+		i = gather_avx512(c, n, i, floor, tv, ti, mx, &m, &nmx, &nan);
+#endif
 #ifdef __SSE2__
 	{
 		/* Two points at a time: the same tests, lane by lane. */
