@@ -311,6 +311,66 @@ static double median_inplace(double *a, size_t n)
 	return select_kth(a, n, n / 2);
 }
 
+#ifdef PK_AVX512
+/* median_near's pass eight values at a time from i (AVX-512F compress
+ * stores, order kept): the values in [lo, hi] are appended to out, those
+ * below lo counted; likewise for g when given. Returns the first index not
+ * done. */
+__attribute__((target("avx512f,popcnt")))
+static size_t bracket_avx512(const double *src, size_t n, size_t i, int absval, double lo,
+                             double hi, double *out, size_t *pm, size_t *pbelow, kth_gather *g)
+{
+	__m512d vlo = _mm512_set1_pd(lo), vhi = _mm512_set1_pd(hi);
+	__m512d glo = _mm512_set1_pd(g ? g->lo : 0.0), ghi = _mm512_set1_pd(g ? g->hi : 0.0);
+	__m512i sign = _mm512_set1_epi64(absval ? 0x7fffffffffffffffLL : -1LL);
+	size_t m = *pm, below = *pbelow;
+	for (; i + 8 <= n; i += 8) {
+		__m512d v = _mm512_castsi512_pd(_mm512_and_si512(
+		                _mm512_castpd_si512(_mm512_loadu_pd(src + i)), sign));
+		__mmask8 in = _mm512_cmp_pd_mask(v, vlo, _CMP_GE_OQ) & _mm512_cmp_pd_mask(v, vhi, _CMP_LE_OQ);
+		below += (size_t)__builtin_popcount(_mm512_cmp_pd_mask(v, vlo, _CMP_LT_OQ));
+		_mm512_mask_compressstoreu_pd(out + m, in, v);
+		m += (size_t)__builtin_popcount(in);
+		if (g) {
+			__mmask8 gin = _mm512_cmp_pd_mask(v, glo, _CMP_GE_OQ) &
+			               _mm512_cmp_pd_mask(v, ghi, _CMP_LE_OQ);
+			g->below += (size_t)__builtin_popcount(_mm512_cmp_pd_mask(v, glo, _CMP_LT_OQ));
+			_mm512_mask_compressstoreu_pd(g->buf + g->m, gin, v);
+			g->m += (size_t)__builtin_popcount(gin);
+		}
+	}
+	*pm = m;
+	*pbelow = below;
+	return i;
+}
+
+/* The values of src[i..n-1] below t1 appended to out1, and (out2 given)
+ * those below t2 to out2, eight at a time (AVX-512F compress stores, order
+ * kept). Returns the first index not done. */
+__attribute__((target("avx512f,popcnt")))
+static size_t below_avx512(const double *src, size_t n, size_t i, double t1, double *out1,
+                           size_t *pm1, double t2, double *out2, size_t *pm2)
+{
+	__m512d v1 = _mm512_set1_pd(t1), v2 = _mm512_set1_pd(t2);
+	size_t m1 = *pm1, m2 = out2 ? *pm2 : 0;
+	for (; i + 8 <= n; i += 8) {
+		__m512d v = _mm512_loadu_pd(src + i);
+		__mmask8 k1 = _mm512_cmp_pd_mask(v, v1, _CMP_LT_OQ);
+		_mm512_mask_compressstoreu_pd(out1 + m1, k1, v);
+		m1 += (size_t)__builtin_popcount(k1);
+		if (out2) {
+			__mmask8 k2 = _mm512_cmp_pd_mask(v, v2, _CMP_LT_OQ);
+			_mm512_mask_compressstoreu_pd(out2 + m2, k2, v);
+			m2 += (size_t)__builtin_popcount(k2);
+		}
+	}
+	*pm1 = m1;
+	if (out2)
+		*pm2 = m2;
+	return i;
+}
+#endif
+
 /* The median of src[0..n-1] (of |src| with absval; src is not changed,
  * scratch holds n) when a neighbouring block's median `near` is known:
  * noise levels change little from block to block, so [near/1.5,
@@ -329,6 +389,10 @@ static double median_near(const double *src, size_t n, int absval, double near,
 	double lo = near > 0.0 ? near / 1.5 : HUGE_VAL, hi = near > 0.0 ? near * 1.5 : -HUGE_VAL;
 	if (!g && !(near > 0.0))
 		goto all;
+#ifdef PK_AVX512
+	if (__builtin_cpu_supports("avx512f") && __builtin_cpu_supports("popcnt"))
+		i = bracket_avx512(src, n, i, absval, lo, hi, scratch, &m, &below, g);
+#endif
 #ifdef __SSE2__
 	{
 		/* Two values at a time, kept in their order; the counts add up
@@ -371,7 +435,7 @@ static double median_near(const double *src, size_t n, int absval, double near,
 			}
 		}
 		_mm_storeu_si128((__m128i *)t, nb);
-		below = (size_t)(t[0] + t[1]);
+		below += (size_t)(t[0] + t[1]);
 	}
 #endif
 	for (; i < n; i++) {
@@ -1339,6 +1403,9 @@ checked:
 		 * bound after all is scanned whole. */
 		double *sel = w.scratch, *cand = w.tv, *bound = w.base;
 		size_t *cstart = w.stk, nc = 0;
+#ifdef PK_AVX512
+		int avx512 = __builtin_cpu_supports("avx512f") && __builtin_cpu_supports("popcnt");
+#endif
 		for (size_t b = 0; b < nb; b++)
 			if (2.5 * gain0 * w.bsn[b] > kmax)
 				kmax = 2.5 * gain0 * w.bsn[b];
@@ -1353,6 +1420,10 @@ checked:
 					size_t i = a;
 					bound[b] = u;
 					cstart[b] = nc;
+#ifdef PK_AVX512
+					if (!nsat && avx512)
+						i = below_avx512(w.c, e, i, thr, sel, &cnt, u, cand, &nc);
+#endif
 #ifdef __SSE2__
 					/* Two at a time where nothing is saturated. */
 					__m128d vt = _mm_set1_pd(thr), vu = _mm_set1_pd(u);
@@ -1380,6 +1451,10 @@ checked:
 					}
 				} else if (thr <= bound[b]) {
 					size_t ce = b + 1 < nb ? cstart[b + 1] : nc, j = cstart[b];
+#ifdef PK_AVX512
+					if (avx512)
+						j = below_avx512(cand, ce, j, thr, sel, &cnt, 0.0, NULL, NULL);
+#endif
 #ifdef __SSE2__
 					__m128d vt = _mm_set1_pd(thr);
 					for (; j + 2 <= ce; j += 2) {
