@@ -507,24 +507,30 @@ static size_t chain(const double *x, const double *y, const size_t *pts, size_t 
 	return k;
 }
 
-/* Index of the lowest of y[a..e-1] (e > a; any of equal lowest ones).
- * Four running minima side by side, each with its index, without
- * branches: on noise, whether a point is the lowest so far is a coin
- * toss. */
-static size_t argmin_block(const double *y, size_t a, size_t e)
+/* Index of the lowest of y[a..e-1] (e > a; any of equal lowest ones);
+ * *finite is cleared when a value is not finite. Four running minima
+ * side by side, each with its index, without branches: on noise, whether
+ * a point is the lowest so far is a coin toss. */
+static size_t argmin_block(const double *y, size_t a, size_t e, int *finite)
 {
 	size_t i = a, mi = a;
 	double mv = y[a];
+	int fin = 1;
 #ifdef __SSE2__
 	if (e - a >= 8) {
 		__m128d v0 = _mm_loadu_pd(y + a), v1 = _mm_loadu_pd(y + a + 2);
 		__m128d i0 = _mm_set_pd((double)(a + 1), (double)a);
 		__m128d i1 = _mm_set_pd((double)(a + 3), (double)(a + 2));
 		__m128d j0 = i0, j1 = i1, four = _mm_set1_pd(4.0);
+		__m128d sign = _mm_set1_pd(-0.0), big = _mm_set1_pd(DBL_MAX);
+		__m128d ok = _mm_and_pd(_mm_cmple_pd(_mm_andnot_pd(sign, v0), big),
+		                        _mm_cmple_pd(_mm_andnot_pd(sign, v1), big));
 		double lv[4], li[4];
 		for (i = a + 4; i + 4 <= e; i += 4) {
 			__m128d y0 = _mm_loadu_pd(y + i), y1 = _mm_loadu_pd(y + i + 2);
 			__m128d l0 = _mm_cmplt_pd(y0, v0), l1 = _mm_cmplt_pd(y1, v1);
+			ok = _mm_and_pd(ok, _mm_and_pd(_mm_cmple_pd(_mm_andnot_pd(sign, y0), big),
+			                               _mm_cmple_pd(_mm_andnot_pd(sign, y1), big)));
 			j0 = _mm_add_pd(j0, four);
 			j1 = _mm_add_pd(j1, four);
 			v0 = _mm_or_pd(_mm_and_pd(l0, y0), _mm_andnot_pd(l0, v0));
@@ -532,6 +538,7 @@ static size_t argmin_block(const double *y, size_t a, size_t e)
 			i0 = _mm_or_pd(_mm_and_pd(l0, j0), _mm_andnot_pd(l0, i0));
 			i1 = _mm_or_pd(_mm_and_pd(l1, j1), _mm_andnot_pd(l1, i1));
 		}
+		fin = _mm_movemask_pd(ok) == 3;
 		_mm_storeu_pd(lv, v0);
 		_mm_storeu_pd(lv + 2, v1);
 		_mm_storeu_pd(li, i0);
@@ -545,13 +552,111 @@ static size_t argmin_block(const double *y, size_t a, size_t e)
 			}
 	}
 #endif
-	for (; i < e; i++)
+	for (; i < e; i++) {
+		fin &= fabs(y[i]) <= DBL_MAX;
 		if (y[i] < mv) {
 			mv = y[i];
 			mi = i;
 		}
+	}
+	*finite &= fin;
 	return mi;
 }
+
+#ifdef PK_AVX512
+/* The same for 2 * 8k values (e - a a multiple of 16), two running minima
+ * of eight lanes (AVX-512F). */
+__attribute__((target("avx512f")))
+static size_t argmin_block_avx512(const double *y, size_t a, size_t e, int *finite)
+{
+	__m512d v0 = _mm512_loadu_pd(y + a), v1 = _mm512_loadu_pd(y + a + 8);
+	__m512i i0 = _mm512_add_epi64(_mm512_set1_epi64((long long)a),
+	                              _mm512_set_epi64(7, 6, 5, 4, 3, 2, 1, 0));
+	__m512i i1 = _mm512_add_epi64(i0, _mm512_set1_epi64(8)), j0 = i0, j1 = i1;
+	__m512i sixteen = _mm512_set1_epi64(16), abs = _mm512_set1_epi64(0x7fffffffffffffffLL);
+	__m512d big = _mm512_set1_pd(DBL_MAX);
+	__mmask8 ok = _mm512_cmp_pd_mask(_mm512_castsi512_pd(_mm512_and_si512(_mm512_castpd_si512(v0), abs)),
+	                                 big, _CMP_LE_OQ) &
+	              _mm512_cmp_pd_mask(_mm512_castsi512_pd(_mm512_and_si512(_mm512_castpd_si512(v1), abs)),
+	                                 big, _CMP_LE_OQ);
+	long long li[8];
+	double lv[8];
+	for (size_t i = a + 16; i + 16 <= e; i += 16) {
+		__m512d y0 = _mm512_loadu_pd(y + i), y1 = _mm512_loadu_pd(y + i + 8);
+		__mmask8 l0 = _mm512_cmp_pd_mask(y0, v0, _CMP_LT_OQ), l1 = _mm512_cmp_pd_mask(y1, v1, _CMP_LT_OQ);
+		ok &= _mm512_cmp_pd_mask(_mm512_castsi512_pd(_mm512_and_si512(_mm512_castpd_si512(y0), abs)),
+		                         big, _CMP_LE_OQ) &
+		      _mm512_cmp_pd_mask(_mm512_castsi512_pd(_mm512_and_si512(_mm512_castpd_si512(y1), abs)),
+		                         big, _CMP_LE_OQ);
+		j0 = _mm512_add_epi64(j0, sixteen);
+		j1 = _mm512_add_epi64(j1, sixteen);
+		v0 = _mm512_mask_mov_pd(v0, l0, y0);
+		v1 = _mm512_mask_mov_pd(v1, l1, y1);
+		i0 = _mm512_mask_mov_epi64(i0, l0, j0);
+		i1 = _mm512_mask_mov_epi64(i1, l1, j1);
+	}
+	{
+		__mmask8 l = _mm512_cmp_pd_mask(v1, v0, _CMP_LT_OQ);
+		v0 = _mm512_mask_mov_pd(v0, l, v1);
+		i0 = _mm512_mask_mov_epi64(i0, l, i1);
+	}
+	_mm512_storeu_pd(lv, v0);
+	_mm512_storeu_si512(li, i0);
+	size_t mi = (size_t)li[0];
+	double mv = lv[0];
+	for (int l = 1; l < 8; l++) {
+		int lt = lv[l] < mv;
+		mv = lt ? lv[l] : mv;
+		mi = lt ? (size_t)li[l] : mi;
+	}
+	*finite &= ok == 0xff;
+	return mi;
+}
+
+/* hull_subtract's candidate pass over one segment, eight points at a time
+ * (AVX-512F compress stores): the indices i in [i, e) with y[i] <=
+ * ya + slope * (x[i] - xa) + margin appended to pts. Returns the first
+ * index not done. */
+__attribute__((target("avx512f,popcnt")))
+static size_t hull_cand_avx512(const double *x, const double *y, size_t i, size_t e, double xa,
+                               double ya, double slope, double margin, size_t *pts, size_t *pm)
+{
+	__m512d vxa = _mm512_set1_pd(xa), vya = _mm512_set1_pd(ya);
+	__m512d vsl = _mm512_set1_pd(slope), vmg = _mm512_set1_pd(margin);
+	__m512i idx = _mm512_add_epi64(_mm512_set1_epi64((long long)i),
+	                               _mm512_set_epi64(7, 6, 5, 4, 3, 2, 1, 0));
+	__m512i eight = _mm512_set1_epi64(8);
+	size_t m = *pm;
+	for (; i + 8 <= e; i += 8) {
+		__m512d lim = _mm512_add_pd(_mm512_add_pd(vya, _mm512_mul_pd(vsl,
+		                  _mm512_sub_pd(_mm512_loadu_pd(x + i), vxa))), vmg);
+		__mmask8 in = _mm512_cmp_pd_mask(_mm512_loadu_pd(y + i), lim, _CMP_LE_OQ);
+		_mm512_mask_compressstoreu_epi64(pts + m, in, idx);
+		m += (size_t)__builtin_popcount(in);
+		idx = _mm512_add_epi64(idx, eight);
+	}
+	*pm = m;
+	return i;
+}
+
+/* hull_subtract's last step over one segment, eight points at a time
+ * (AVX-512F; each lane the scalar operations). Returns the first index
+ * not done. */
+__attribute__((target("avx512f")))
+static size_t hull_take_avx512(const double *x, const double *y, const double *raw, size_t i,
+                               size_t end, double xa, double ya, double slope, double *c,
+                               double *r)
+{
+	__m512d vxa = _mm512_set1_pd(xa), vya = _mm512_set1_pd(ya), vsl = _mm512_set1_pd(slope);
+	for (; i + 8 <= end; i += 8) {
+		__m512d base = _mm512_add_pd(vya, _mm512_mul_pd(vsl, _mm512_sub_pd(_mm512_loadu_pd(x + i), vxa)));
+		__m512d vy = _mm512_loadu_pd(y + i), vr = _mm512_loadu_pd(raw + i);
+		_mm512_storeu_pd(c + i, _mm512_sub_pd(vy, base));
+		_mm512_storeu_pd(r + i, _mm512_sub_pd(vr, base));
+	}
+	return i;
+}
+#endif
 
 /* Lower convex hull of (x, y) (x ascending), linearly interpolated onto
  * every point and taken off: c = y - hull, r = raw - hull (r may be y's
@@ -568,18 +673,28 @@ static size_t argmin_block(const double *y, size_t a, size_t e)
  * same chain; a margin far above the rounding of H_S (1e-9 of its largest
  * value) and far below any noise keeps points that rounding could place on
  * either side. The points above it never reach a turn test near zero. With
- * values so large that the margin could overflow, all points are
- * candidates. */
-#define HULL_BLOCK 32
+ * values so large that the margin could overflow, or any not finite, all
+ * points are candidates. */
+#define HULL_BLOCK 128
 static void hull_subtract(const double *x, const double *y, const double *raw, size_t n,
                           double *c, double *r, size_t *idx, size_t *pts, double *hx, double *hy)
 {
 	size_t k = 0, m = 0;
+#ifdef PK_AVX512
+	int avx512 = __builtin_cpu_supports("avx512f") && __builtin_cpu_supports("popcnt");
+#endif
 	if (n >= 4 * HULL_BLOCK) {
 		double top = 0.0;
+		int finite = 1;
 		pts[m++] = 0;
 		for (size_t a = 0; a < n; a += HULL_BLOCK) {
-			size_t i = argmin_block(y, a, a + HULL_BLOCK < n ? a + HULL_BLOCK : n);
+			size_t e = a + HULL_BLOCK < n ? a + HULL_BLOCK : n, i;
+#ifdef PK_AVX512
+			if (avx512 && e - a == HULL_BLOCK)
+				i = argmin_block_avx512(y, a, e, &finite);
+			else
+#endif
+				i = argmin_block(y, a, e, &finite);
 			if (i != pts[m - 1])
 				pts[m++] = i;
 		}
@@ -590,11 +705,15 @@ static void hull_subtract(const double *x, const double *y, const double *raw, s
 			if (fabs(hy[h]) > top)
 				top = fabs(hy[h]);
 		m = 0;
-		if (top < 1e100 && x[n - 1] - x[0] < 1e100) {
+		if (finite && top < 1e100 && x[n - 1] - x[0] < 1e100) {
 			double margin = 1e-9 * top + 1e-300;
 			for (size_t h = 0; h + 1 < k; h++) {
 				size_t a = idx[h], e = h + 2 == k ? idx[h + 1] + 1 : idx[h + 1], i = a;
 				double xa = hx[h], ya = hy[h], slope = (hy[h + 1] - ya) / (hx[h + 1] - xa);
+#ifdef PK_AVX512
+				if (avx512)
+					i = hull_cand_avx512(x, y, i, e, xa, ya, slope, margin, pts, &m);
+#endif
 #ifdef __SSE2__
 				__m128d vxa = _mm_set1_pd(xa), vya = _mm_set1_pd(ya);
 				__m128d vsl = _mm_set1_pd(slope), vmg = _mm_set1_pd(margin);
@@ -634,6 +753,10 @@ static void hull_subtract(const double *x, const double *y, const double *raw, s
 		 * points at a time where SSE2 is there: the same operations in
 		 * each lane, so the same values. */
 		size_t end = h + 2 == k ? b + 1 : b;
+#ifdef PK_AVX512
+		if (avx512)
+			i = hull_take_avx512(x, y, raw, i, end, xa, ya, slope, c, r);
+#endif
 #ifdef __SSE2__
 		__m128d vxa = _mm_set1_pd(xa), vya = _mm_set1_pd(ya), vsl = _mm_set1_pd(slope);
 		for (; i + 2 <= end; i += 2) {
