@@ -371,6 +371,44 @@ static size_t below_avx512(const double *src, size_t n, size_t i, double t1, dou
 }
 #endif
 
+#ifdef PK_AVX512
+/* The noise pass eight points at a time from i (AVX-512F; each lane the
+ * scalar operations; the extremes and the least nonzero step are the same
+ * values in any order): dd[j] = |y[j-1] - 2 y[j] + y[j+1]|, and the
+ * running lowest, highest and least nonzero |y[j+1] - y[j]| carried in
+ * lo, hi, q. Returns the first index not done. */
+__attribute__((target("avx512f")))
+static size_t noise_pass_avx512(const double *y, size_t n, size_t i, double *dd, double *lo,
+                                double *hi, double *q)
+{
+	__m512d vlo = _mm512_set1_pd(*lo), vhi = _mm512_set1_pd(*hi), vq = _mm512_set1_pd(*q);
+	__m512d two = _mm512_set1_pd(2.0), zero = _mm512_setzero_pd();
+	__m512i abs = _mm512_set1_epi64(0x7fffffffffffffffLL);
+	double t[8];
+	for (; i + 8 < n; i += 8) {
+		__m512d a = _mm512_loadu_pd(y + i - 1), v = _mm512_loadu_pd(y + i);
+		__m512d b = _mm512_loadu_pd(y + i + 1);
+		__m512d d = _mm512_castsi512_pd(_mm512_and_si512(_mm512_castpd_si512(_mm512_sub_pd(b, v)), abs));
+		__mmask8 pos = _mm512_cmp_pd_mask(d, zero, _CMP_GT_OQ);
+		vlo = _mm512_min_pd(v, vlo);
+		vhi = _mm512_max_pd(v, vhi);
+		vq = _mm512_mask_min_pd(vq, pos, d, vq);
+		_mm512_storeu_pd(dd + i, _mm512_castsi512_pd(_mm512_and_si512(_mm512_castpd_si512(
+		                     _mm512_add_pd(_mm512_sub_pd(a, _mm512_mul_pd(two, v)), b)), abs)));
+	}
+	_mm512_storeu_pd(t, vlo);
+	for (int l = 0; l < 8; l++)
+		*lo = t[l] < *lo ? t[l] : *lo;
+	_mm512_storeu_pd(t, vhi);
+	for (int l = 0; l < 8; l++)
+		*hi = t[l] > *hi ? t[l] : *hi;
+	_mm512_storeu_pd(t, vq);
+	for (int l = 0; l < 8; l++)
+		*q = t[l] < *q ? t[l] : *q;
+	return i;
+}
+#endif
+
 /* The median of src[0..n-1] (of |src| with absval; src is not changed,
  * scratch holds n) when a neighbouring block's median `near` is known:
  * noise levels change little from block to block, so [near/1.5,
@@ -1414,10 +1452,18 @@ checked:
 		 * the extremes and the least step are the same values in any
 		 * order. */
 		{
-			__m128d vlo = _mm_set1_pd(lo), vhi = vlo, vq = _mm_set1_pd(HUGE_VAL);
+			double d0 = fabs(w.y[1] - w.y[0]);
+			if (d0 > 0.0)
+				q = d0;
+			i = 1;
+#ifdef PK_AVX512
+			if (__builtin_cpu_supports("avx512f"))
+				i = noise_pass_avx512(w.y, n, i, dd, &lo, &hi, &q);
+#endif
+			__m128d vlo = _mm_set1_pd(lo), vhi = _mm_set1_pd(hi), vq = _mm_set1_pd(q);
 			__m128d two = _mm_set1_pd(2.0), sign = _mm_set1_pd(-0.0), zero = _mm_setzero_pd();
 			double t[2];
-			for (i = 1; i + 2 < n; i += 2) {
+			for (; i + 2 < n; i += 2) {
 				__m128d a = _mm_loadu_pd(w.y + i - 1), v = _mm_loadu_pd(w.y + i);
 				__m128d b = _mm_loadu_pd(w.y + i + 1);
 				__m128d d = _mm_andnot_pd(sign, _mm_sub_pd(b, v)), pos = _mm_cmpgt_pd(d, zero);
@@ -1433,9 +1479,6 @@ checked:
 			hi = t[0] > t[1] ? t[0] : t[1];
 			_mm_storeu_pd(t, vq);
 			q = t[0] < t[1] ? t[0] : t[1];
-			double d = fabs(w.y[1] - w.y[0]);
-			if (d > 0.0 && d < q)
-				q = d;
 		}
 #endif
 		for (; i + 1 < n; i++) {
@@ -1866,7 +1909,13 @@ checked:
 		if (o->shoulders && nk > 0) {
 			double *nd2 = w.scratch;
 			size_t *sig = w.stk + nk, ns = 0; /* significant lobes, after kidx */
-			for (size_t i = 0; i < n; i++)
+			size_t i0 = 0;
+#ifdef __SSE2__
+			/* Negation flips the sign bit: two at a time. */
+			for (__m128d sign = _mm_set1_pd(-0.0); i0 + 2 <= n; i0 += 2)
+				_mm_storeu_pd(nd2 + i0, _mm_xor_pd(_mm_loadu_pd(w.d2 + i0), sign));
+#endif
+			for (size_t i = i0; i < n; i++)
 				nd2[i] = -w.d2[i];
 			/* Only lobes above zero count: the floor is the least
 			 * positive value. */
