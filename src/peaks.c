@@ -1175,6 +1175,112 @@ static double med3(const double *v, size_t nb, size_t b)
 	return c;
 }
 
+/* One term of a band's area above the line joining its valleys
+ * (trapezoidal rule from point j to j+1); u carries the height at j. */
+static inline double area_term(const double *x, const double *c, size_t j, double x1, double y1,
+                               double sl, double *u)
+{
+	double v = c[j + 1] - (y1 + sl * (x[j + 1] - x1)), t;
+	if (v < 0.0)
+		v = 0.0;
+	t = 0.5 * (*u + v) * (x[j + 1] - x[j]);
+	*u = v;
+	return t;
+}
+
+/* Areas of the bands whose valleys are lv[q], rv[q], q < nk: above the
+ * line joining the valleys (a band on a broad neighbour does not get the
+ * neighbour's area), each summed in order. Two bands side by side, so
+ * that the two chains of additions overlap instead of waiting on each
+ * other; each sum is what it would be alone. */
+static void band_areas(const double *x, const double *c, const size_t *lv, const size_t *rv,
+                       size_t nk, double *area)
+{
+	double x1[2], y1[2], sl[2], u[2];
+	size_t j[2], e[2];
+	for (size_t q = 0; q < nk; q += 2) {
+		int two = q + 1 < nk;
+		for (int s = 0; s < 1 + two; s++) {
+			size_t l = lv[q + (size_t)s], r = rv[q + (size_t)s];
+			double x2 = x[r], y2 = c[r] > 0.0 ? c[r] : 0.0;
+			x1[s] = x[l];
+			y1[s] = c[l] > 0.0 ? c[l] : 0.0;
+			sl[s] = x2 > x1[s] ? (y2 - y1[s]) / (x2 - x1[s]) : 0.0;
+			u[s] = c[l] - (y1[s] + sl[s] * (x[l] - x1[s]));
+			if (u[s] < 0.0)
+				u[s] = 0.0;
+			j[s] = l;
+			e[s] = r;
+		}
+		if (two) {
+			double a0 = 0.0, a1 = 0.0, u0 = u[0], u1 = u[1];
+			size_t j0 = j[0], j1 = j[1];
+			for (; j0 < e[0] && j1 < e[1]; j0++, j1++) {
+				a0 += area_term(x, c, j0, x1[0], y1[0], sl[0], &u0);
+				a1 += area_term(x, c, j1, x1[1], y1[1], sl[1], &u1);
+			}
+			for (; j0 < e[0]; j0++)
+				a0 += area_term(x, c, j0, x1[0], y1[0], sl[0], &u0);
+			for (; j1 < e[1]; j1++)
+				a1 += area_term(x, c, j1, x1[1], y1[1], sl[1], &u1);
+			area[q] = a0;
+			area[q + 1] = a1;
+		} else {
+			double a0 = 0.0, u0 = u[0];
+			for (size_t j0 = j[0]; j0 < e[0]; j0++)
+				a0 += area_term(x, c, j0, x1[0], y1[0], sl[0], &u0);
+			area[q] = a0;
+		}
+	}
+}
+
+#ifdef PK_AVX512
+/* The lowest value of c[a..e] (NaNs passed over; v, one of the values,
+ * is not NaN) and the first and last index holding it, eight points at a
+ * time (AVX-512F). */
+__attribute__((target("avx512f")))
+static void lowest_avx512(const double *c, size_t a, size_t e, double v, size_t *first,
+                          size_t *last)
+{
+	__m512d acc = _mm512_set1_pd(v);
+	size_t j = a;
+	double mn;
+	for (; j + 8 <= e + 1; j += 8)
+		acc = _mm512_min_pd(_mm512_loadu_pd(c + j), acc);
+	mn = _mm512_reduce_min_pd(acc);
+	for (; j <= e; j++)
+		mn = c[j] < mn ? c[j] : mn;
+	/* The first and the last place: each scan stops at one. */
+	__m512d vm = _mm512_set1_pd(mn);
+	for (j = a;; j += 8) {
+		if (j + 8 > e + 1) {
+			while (!(c[j] == mn))
+				j++;
+			*first = j;
+			break;
+		}
+		__mmask8 k = _mm512_cmp_pd_mask(_mm512_loadu_pd(c + j), vm, _CMP_EQ_OQ);
+		if (k) {
+			*first = j + (size_t)__builtin_ctz(k);
+			break;
+		}
+	}
+	for (j = e + 1;; j -= 8) {
+		if (j < a + 8) {
+			while (!(c[j - 1] == mn))
+				j--;
+			*last = j - 1;
+			break;
+		}
+		__mmask8 k = _mm512_cmp_pd_mask(_mm512_loadu_pd(c + j - 8), vm, _CMP_EQ_OQ);
+		if (k) {
+			*last = j - 8 + (size_t)(31 - __builtin_clz(k));
+			break;
+		}
+	}
+}
+#endif
+
 /* ---- the picker ---------------------------------------------------------- */
 
 
@@ -1743,16 +1849,32 @@ checked:
 	{
 		size_t *kidx = w.stk; /* reuse: indices of kept maxima */
 		size_t nk = 0, next_lv = 0;
+		size_t *lvs = w.stk2, *rvs = w.stk3; /* valleys of each */
+		double *area = w.base;
+#ifdef PK_AVX512
+		int avx512 = __builtin_cpu_supports("avx512f");
+#endif
 		for (size_t q = 0; q < nmx; q++)
 			if (w.keep[w.mx[q]] & 1)
 				kidx[nk++] = w.mx[q];
 		for (size_t q = 0; q < nk; q++) {
 			size_t i = kidx[q];
 			size_t lv, rv; /* valley indices */
-			irr_peak p;
-			double off, h;
 			/* Left valley: argmin of c between the previous kept maximum
 			 * (or the start) and i; likewise right. */
+#ifdef PK_AVX512
+			/* The same lowest points found eight at a time: the
+			 * lowest value, then its first and last place (the
+			 * scans below take the first and keep the last one). */
+			if (nsat == 0 && avx512 && !(w.c[i] != w.c[i])) {
+				size_t b = q + 1 < nk ? kidx[q + 1] : n - 1, first;
+				if (q == 0)
+					lowest_avx512(w.c, 0, i, w.c[i], &first, &lv);
+				else
+					lv = next_lv;
+				lowest_avx512(w.c, i, b, w.c[i], &rv, &next_lv);
+			} else
+#endif
 			if (nsat == 0) {
 				/* No walls: the stretch between two neighbours is
 				 * scanned once for both valleys, the right one of this
@@ -1792,6 +1914,14 @@ checked:
 					if (w.c[j + 1] < w.c[rv])
 						rv = j + 1;
 			}
+			lvs[q] = lv;
+			rvs[q] = rv;
+		}
+		band_areas(w.x, w.c, lvs, rvs, nk, area);
+		for (size_t q = 0; q < nk; q++) {
+			size_t i = kidx[q], lv = lvs[q], rv = rvs[q];
+			irr_peak p;
+			double off, h;
 			interp3(w.c, i, 1, &off, &h);
 			memset(&p, 0, sizeof p);
 			p.position = x_at(w.x, n, (double)i + off);
@@ -1878,24 +2008,7 @@ checked:
 					}
 				}
 			}
-			/* Area above the line joining the two valleys (a band on a
-			 * broad neighbour does not get the neighbour's area). */
-			{
-				double a = 0.0, x1 = w.x[lv], x2 = w.x[rv];
-				double y1 = w.c[lv] > 0.0 ? w.c[lv] : 0.0, y2 = w.c[rv] > 0.0 ? w.c[rv] : 0.0;
-				double sl = x2 > x1 ? (y2 - y1) / (x2 - x1) : 0.0;
-				double u = w.c[lv] - (y1 + sl * (w.x[lv] - x1));
-				if (u < 0.0)
-					u = 0.0;
-				for (size_t j = lv; j < rv; j++) {
-					double v = w.c[j + 1] - (y1 + sl * (w.x[j + 1] - x1));
-					if (v < 0.0)
-						v = 0.0;
-					a += 0.5 * (u + v) * (w.x[j + 1] - w.x[j]);
-					u = v;
-				}
-				p.area = a;
-			}
+			p.area = area[q];
 			if ((rc = irr_peaks__push(pl, &p)) != IRR_OK) {
 				irr_error_set(err, rc, name, 0, "out of memory");
 				goto done;
