@@ -12,6 +12,9 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#ifdef __SSE2__
+#include <emmintrin.h>
+#endif
 
 /* Transmittance (fraction) at or below which the detector is taken to see
  * no light: A >= 3. Photometric accuracy of FT-IR and dispersive
@@ -413,6 +416,30 @@ static size_t mark_flat_extreme(const double *y, size_t n, double e, unsigned ch
 	return count;
 }
 
+/* The highest of y[0..n-1] (n >= 1; a NaN counts only as y[0], as in a
+ * plain scan), two at a time where SSE2 is there: the same value in any
+ * order. */
+static double highest(const double *y, size_t n)
+{
+	double hi = y[0];
+	size_t i = 1;
+#ifdef __SSE2__
+	if (n >= 3) {
+		__m128d h = _mm_set1_pd(hi);
+		double t[2];
+		for (; i + 2 <= n; i += 2)
+			h = _mm_max_pd(_mm_loadu_pd(y + i), h);
+		_mm_storeu_pd(t, h);
+		hi = t[0] > hi ? t[0] : hi;
+		hi = t[1] > hi ? t[1] : hi;
+	}
+#endif
+	for (; i < n; i++)
+		if (y[i] > hi)
+			hi = y[i];
+	return hi;
+}
+
 /* The conversion proper, on copies x, y of the data: the caller keeps the
  * originals until this succeeds. */
 static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *err)
@@ -470,10 +497,7 @@ static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *er
 	} else if (u == IRR_Y_TRANSMITTANCE || u == IRR_Y_REFLECTANCE) {
 		/* Files label percent values TRANSMITTANCE too (indene-difdup,
 		 * fixinc1 up to 112 %T): a fraction never reaches 2. */
-		double hi = y[0];
-		for (size_t i = 1; i < n; i++)
-			if (y[i] > hi)
-				hi = y[i];
+		double hi = highest(y, n);
 		if (hi > 2.0) {
 			if (u == IRR_Y_TRANSMITTANCE) {
 				u = IRR_Y_PERCENT_T;
@@ -510,7 +534,31 @@ static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *er
 		/* Saturated: no light reaches the detector (T at or below the
 		 * floor), or the minimum is clipped flat. */
 		double tmin = y[0], tminpos = HUGE_VAL, ceiling;
-		for (size_t i = 0; i < n; i++) {
+		size_t i0 = 0;
+#ifdef __SSE2__
+		/* Two at a time: the lowest values are the same in any order. */
+		{
+			__m128d lo = _mm_set1_pd(tmin), lp = _mm_set1_pd(HUGE_VAL);
+			__m128d zero = _mm_setzero_pd(), fl = _mm_set1_pd(T_FLOOR);
+			double t[2];
+			for (; i0 + 2 <= n; i0 += 2) {
+				__m128d v = _mm_loadu_pd(y + i0), pos = _mm_cmpgt_pd(v, zero);
+				int f = _mm_movemask_pd(_mm_cmple_pd(v, fl));
+				lo = _mm_min_pd(v, lo);
+				lp = _mm_min_pd(_mm_or_pd(_mm_and_pd(pos, v), _mm_andnot_pd(pos, lp)), lp);
+				sat[i0] = (unsigned char)(f & 1);
+				sat[i0 + 1] = (unsigned char)(f >> 1);
+				nsat_pts += (size_t)((f & 1) + (f >> 1));
+			}
+			_mm_storeu_pd(t, lo);
+			tmin = t[0] < tmin ? t[0] : tmin;
+			tmin = t[1] < tmin ? t[1] : tmin;
+			_mm_storeu_pd(t, lp);
+			tminpos = t[0] < tminpos ? t[0] : tminpos;
+			tminpos = t[1] < tminpos ? t[1] : tminpos;
+		}
+#endif
+		for (size_t i = i0; i < n; i++) {
 			double v = y[i];
 			tmin = v < tmin ? v : tmin;
 			tminpos = (v > 0) & (v < tminpos) ? v : tminpos;
@@ -602,9 +650,19 @@ int irr_spectrum_normalise(irr_spectrum *s, irr_error *err)
 	/* Copied in ascending order straight away (IR files usually run from
 	 * high to low wavenumber); micrometres are reversed after conversion. */
 	if (!s->x_micrometers && s->x[0] > s->x[s->n - 1]) {
-		for (size_t i = 0, j = s->n - 1; i < s->n; i++, j--) {
-			x[i] = s->x[j];
-			y[i] = s->y[j];
+		size_t i = 0;
+#ifdef __SSE2__
+		/* Two at a time, their order swapped. */
+		for (; i + 2 <= s->n; i += 2) {
+			size_t j = s->n - 2 - i;
+			__m128d vx = _mm_loadu_pd(s->x + j), vy = _mm_loadu_pd(s->y + j);
+			_mm_storeu_pd(x + i, _mm_shuffle_pd(vx, vx, 1));
+			_mm_storeu_pd(y + i, _mm_shuffle_pd(vy, vy, 1));
+		}
+#endif
+		for (; i < s->n; i++) {
+			x[i] = s->x[s->n - 1 - i];
+			y[i] = s->y[s->n - 1 - i];
 		}
 	} else {
 		memcpy(x, s->x, s->n * sizeof *x);
