@@ -409,6 +409,81 @@ static size_t noise_pass_avx512(const double *y, size_t n, size_t i, double *dd,
 }
 #endif
 
+#ifdef PK_AVX512
+/* One step of Batcher's bitonic sorting network (K. E. Batcher, AFIPS
+ * Spring Joint Computer Conference 32 (1968) 307) over the nr * 8 values
+ * of v, for block size k and distance j: every pair i, i ^ j ordered
+ * ascending where i & k is 0, else descending. Constant arguments unroll
+ * it to a few shuffles, minima and maxima. */
+__attribute__((target("avx512f"), always_inline))
+static inline void bitonic_step(__m512d *v, int nr, int k, int j)
+{
+	if (j >= 8) {
+		int jr = j >> 3;
+#pragma GCC unroll 8
+		for (int r = 0; r < nr; r++) {
+			int p = r ^ jr;
+			if (p <= r || p >= nr)
+				continue;
+			__m512d mn = _mm512_min_pd(v[r], v[p]), mx = _mm512_max_pd(v[r], v[p]);
+			int desc = ((r * 8) & k) != 0;
+			v[r] = desc ? mx : mn;
+			v[p] = desc ? mn : mx;
+		}
+	} else {
+		__m512i perm = _mm512_xor_si512(_mm512_set_epi64(7, 6, 5, 4, 3, 2, 1, 0),
+		                                _mm512_set1_epi64(j));
+#pragma GCC unroll 8
+		for (int r = 0; r < nr; r++) {
+			unsigned upper = 0;
+#pragma GCC unroll 8
+			for (int l = 0; l < 8; l++)
+				upper |= (unsigned)((((r * 8 + l) & k) != 0) ^ ((l & j) != 0)) << l;
+			__m512d q = _mm512_permutexvar_pd(perm, v[r]);
+			v[r] = _mm512_mask_blend_pd((__mmask8)upper, _mm512_min_pd(v[r], q),
+			                            _mm512_max_pd(v[r], q));
+		}
+	}
+}
+
+__attribute__((target("avx512f"), always_inline))
+static inline void bitonic_sort(__m512d *v, int nr)
+{
+#pragma GCC unroll 8
+	for (int k = 2; k <= nr * 8; k <<= 1)
+#pragma GCC unroll 8
+		for (int j = k >> 1; j > 0; j >>= 1)
+			bitonic_step(v, nr, k, j);
+}
+
+/* The k-th smallest of a[0..m-1] (k < m <= 64) by sorting them, padded
+ * with +infinity, in registers: no branch depends on the values, where a
+ * partition of a few dozen noise values mispredicts at every level. For
+ * values without NaN, among which equal values are equal bit for bit (no
+ * -0 beside +0), it is the value select_small finds. */
+__attribute__((target("avx512f")))
+static double select_net_avx512(const double *a, size_t m, size_t k)
+{
+	__m512d v[8], inf = _mm512_set1_pd(HUGE_VAL);
+	double out[64];
+	int nr = m <= 16 ? 2 : m <= 32 ? 4 : 8;
+	for (int r = 0; r < nr; r++) {
+		size_t o = (size_t)r * 8, rem = m > o ? m - o : 0;
+		v[r] = _mm512_mask_loadu_pd(inf, rem >= 8 ? (__mmask8)0xff : (__mmask8)((1u << rem) - 1),
+		                            a + o);
+	}
+	if (nr == 2)
+		bitonic_sort(v, 2);
+	else if (nr == 4)
+		bitonic_sort(v, 4);
+	else
+		bitonic_sort(v, 8);
+	for (int r = 0; r < nr; r++)
+		_mm512_storeu_pd(out + 8 * r, v[r]);
+	return out[k];
+}
+#endif
+
 /* The median of src[0..n-1] (of |src| with absval; src is not changed,
  * scratch holds n) when a neighbouring block's median `near` is known:
  * noise levels change little from block to block, so [near/1.5,
@@ -487,8 +562,15 @@ static double median_near(const double *src, size_t n, int absval, double near,
 			g->m += (v >= g->lo) & (v <= g->hi);
 		}
 	}
-	if (near > 0.0 && below <= k && k < below + m)
+	if (near > 0.0 && below <= k && k < below + m) {
+#ifdef PK_AVX512
+		/* What lies inside is no NaN, and |v| or a second difference's
+		 * absolute value is never -0. */
+		if (m <= 64 && __builtin_cpu_supports("avx512f"))
+			return select_net_avx512(scratch, m, k - below);
+#endif
 		return select_small(scratch, m, k - below);
+	}
 all:
 	for (i = 0; i < n; i++)
 		scratch[i] = absval ? fabs(src[i]) : src[i];
