@@ -384,7 +384,6 @@ static size_t noise_pass_avx512(const double *y, size_t n, size_t i, double *dd,
 	__m512d vlo = _mm512_set1_pd(*lo), vhi = _mm512_set1_pd(*hi), vq = _mm512_set1_pd(*q);
 	__m512d two = _mm512_set1_pd(2.0), zero = _mm512_setzero_pd();
 	__m512i abs = _mm512_set1_epi64(0x7fffffffffffffffLL);
-	double t[8];
 	for (; i + 8 < n; i += 8) {
 		__m512d a = _mm512_loadu_pd(y + i - 1), v = _mm512_loadu_pd(y + i);
 		__m512d b = _mm512_loadu_pd(y + i + 1);
@@ -396,15 +395,10 @@ static size_t noise_pass_avx512(const double *y, size_t n, size_t i, double *dd,
 		_mm512_storeu_pd(dd + i, _mm512_castsi512_pd(_mm512_and_si512(_mm512_castpd_si512(
 		                     _mm512_add_pd(_mm512_sub_pd(a, _mm512_mul_pd(two, v)), b)), abs)));
 	}
-	_mm512_storeu_pd(t, vlo);
-	for (int l = 0; l < 8; l++)
-		*lo = t[l] < *lo ? t[l] : *lo;
-	_mm512_storeu_pd(t, vhi);
-	for (int l = 0; l < 8; l++)
-		*hi = t[l] > *hi ? t[l] : *hi;
-	_mm512_storeu_pd(t, vq);
-	for (int l = 0; l < 8; l++)
-		*q = t[l] < *q ? t[l] : *q;
+	/* Reduced in registers; the values are finite here. */
+	*lo = _mm512_reduce_min_pd(vlo);
+	*hi = _mm512_reduce_max_pd(vhi);
+	*q = _mm512_reduce_min_pd(vq);
 	return i;
 }
 #endif
@@ -461,11 +455,13 @@ static inline void bitonic_sort(__m512d *v, int nr)
  * partition of a few dozen noise values mispredicts at every level. For
  * values without NaN, among which equal values are equal bit for bit (no
  * -0 beside +0), it is the value select_small finds. */
-__attribute__((target("avx512f")))
+__attribute__((target("avx512f"), no_sanitize_address))
 static double select_net_avx512(const double *a, size_t m, size_t k)
 {
+	/* (Not instrumented by AddressSanitizer, which would move v to a
+	 * stack of its own without the alignment its vectors need; every
+	 * load is masked to a[0..m-1].) */
 	__m512d v[8], inf = _mm512_set1_pd(HUGE_VAL);
-	double out[64];
 	int nr = m <= 16 ? 2 : m <= 32 ? 4 : 8;
 	for (int r = 0; r < nr; r++) {
 		size_t o = (size_t)r * 8, rem = m > o ? m - o : 0;
@@ -478,9 +474,7 @@ static double select_net_avx512(const double *a, size_t m, size_t k)
 		bitonic_sort(v, 4);
 	else
 		bitonic_sort(v, 8);
-	for (int r = 0; r < nr; r++)
-		_mm512_storeu_pd(out + 8 * r, v[r]);
-	return out[k];
+	return _mm512_cvtsd_f64(_mm512_permutexvar_pd(_mm512_set1_epi64((long long)(k & 7)), v[k >> 3]));
 }
 #endif
 
@@ -699,8 +693,6 @@ static size_t argmin_block_avx512(const double *y, size_t a, size_t e, int *fini
 	                                 big, _CMP_LE_OQ) &
 	              _mm512_cmp_pd_mask(_mm512_castsi512_pd(_mm512_and_si512(_mm512_castpd_si512(v1), abs)),
 	                                 big, _CMP_LE_OQ);
-	long long li[8];
-	double lv[8];
 	for (size_t i = a + 16; i + 16 <= e; i += 16) {
 		__m512d y0 = _mm512_loadu_pd(y + i), y1 = _mm512_loadu_pd(y + i + 8);
 		__mmask8 l0 = _mm512_cmp_pd_mask(y0, v0, _CMP_LT_OQ), l1 = _mm512_cmp_pd_mask(y1, v1, _CMP_LT_OQ);
@@ -716,21 +708,17 @@ static size_t argmin_block_avx512(const double *y, size_t a, size_t e, int *fini
 		i1 = _mm512_mask_mov_epi64(i1, l1, j1);
 	}
 	{
+		/* Reduced in registers (a stack array of vectors need not be
+		 * aligned as they are under a sanitizer): the lowest index
+		 * among the lanes holding the lowest value. */
 		__mmask8 l = _mm512_cmp_pd_mask(v1, v0, _CMP_LT_OQ);
 		v0 = _mm512_mask_mov_pd(v0, l, v1);
 		i0 = _mm512_mask_mov_epi64(i0, l, i1);
+		l = _mm512_cmp_pd_mask(v0, _mm512_set1_pd(_mm512_reduce_min_pd(v0)), _CMP_EQ_OQ);
+		*finite &= ok == 0xff;
+		/* Without a lane equal to the lowest (a NaN), the first. */
+		return l ? (size_t)_mm512_mask_reduce_min_epi64(l, i0) : a;
 	}
-	_mm512_storeu_pd(lv, v0);
-	_mm512_storeu_si512(li, i0);
-	size_t mi = (size_t)li[0];
-	double mv = lv[0];
-	for (int l = 1; l < 8; l++) {
-		int lt = lv[l] < mv;
-		mv = lt ? lv[l] : mv;
-		mi = lt ? (size_t)li[l] : mi;
-	}
-	*finite &= ok == 0xff;
-	return mi;
 }
 
 /* hull_subtract's candidate pass over one segment, eight points at a time
