@@ -156,33 +156,87 @@ int irr_sg__coefficients(int half, int order, int deriv, int at, double *c)
 	return IRR_OK;
 }
 
+/* The coefficients of the window and degree last used in this thread,
+ * exactly as fit_coefficients gives them: the picker uses one pair for a
+ * whole batch of spectra, and working out the end windows' sets again for
+ * each was a tenth of the filter's time. Centre sets and the end windows'
+ * sets (left end offsets -half..-1, right end half..1), of the smoothing
+ * and of the second derivative; windows up to SG_CACHE_HALF. */
+#define SG_CACHE_HALF 16
+typedef struct sg_cache {
+	int half, order; /* half 0: empty */
+	double c[2][2 * SG_CACHE_HALF + 1];                   /* [deriv / 2][j] */
+	double e[2][2][SG_CACHE_HALF][2 * SG_CACHE_HALF + 1]; /* [deriv / 2][end][k][j] */
+} sg_cache;
+static _Thread_local sg_cache sg_last;
+
+/* The sets for (half, order), 2 <= order <= min(2 * half, SG_MAX_ORDER),
+ * or NULL when half is beyond the cache or the fit is singular. */
+static const sg_cache *cache_get(int half, int order)
+{
+	sg_cache *C = &sg_last;
+	sg_fit F;
+	if (half > SG_CACHE_HALF)
+		return NULL;
+	if (C->half == half && C->order == order)
+		return C;
+	C->half = 0;
+	if (fit_prepare(&F, half, order) != 0)
+		return NULL;
+	for (int d = 0; d < 2; d++) {
+		fit_coefficients(&F, 2 * d, 0, C->c[d]);
+		for (int k = 0; k < half; k++) {
+			fit_coefficients(&F, 2 * d, k - half, C->e[d][0][k]);
+			fit_coefficients(&F, 2 * d, half - k, C->e[d][1][k]);
+		}
+	}
+	C->half = half;
+	C->order = order;
+	return C;
+}
+
 double irr_sg__noise_gain(int half, int order, int deriv)
 {
 	double c[2 * 64 + 1], s = 0.0;
-	if (half > 64 || irr_sg__coefficients(half, order, deriv, 0, c) != IRR_OK)
+	const double *cc = c;
+	const sg_cache *C = NULL;
+	if (half >= 1 && order >= 2 && order <= SG_MAX_ORDER && order <= 2 * half &&
+	    (deriv == 0 || deriv == 2))
+		C = cache_get(half, order);
+	if (C)
+		cc = C->c[deriv / 2];
+	else if (half > 64 || irr_sg__coefficients(half, order, deriv, 0, c) != IRR_OK)
 		return 1.0;
 	for (int j = 0; j <= 2 * half; j++)
-		s += c[j] * c[j];
+		s += cc[j] * cc[j];
 	return sqrt(s);
 }
 
 /* The first and last `half` points: the end windows' polynomials
- * evaluated off-centre. c is scratch of 2*half+1. */
-static void ends(const double *y, size_t n, const sg_fit *F, int deriv, double *c,
-                 double *out)
+ * evaluated off-centre. c is scratch of 2*half+1; with C, the sets come
+ * from the cache (deriv 0 or 2) and only F->half is read. */
+static void ends(const double *y, size_t n, const sg_fit *F, const sg_cache *C, int deriv,
+                 double *c, double *out)
 {
 	int half = F->half;
 	size_t w = (size_t)(2 * half + 1);
 	for (int k = 0; k < half; k++) {
 		double s = 0.0;
-		fit_coefficients(F, deriv, k - half, c);
+		const double *cl = c, *cr = c;
+		if (C)
+			cl = C->e[deriv / 2][0][k];
+		else
+			fit_coefficients(F, deriv, k - half, c);
 		for (size_t j = 0; j < w; j++)
-			s += c[j] * y[j];
+			s += cl[j] * y[j];
 		out[k] = s;
-		fit_coefficients(F, deriv, half - k, c);
+		if (C)
+			cr = C->e[deriv / 2][1][k];
+		else
+			fit_coefficients(F, deriv, half - k, c);
 		s = 0.0;
 		for (size_t j = 0; j < w; j++)
-			s += c[j] * y[n - w + j];
+			s += cr[j] * y[n - w + j];
 		out[n - 1 - (size_t)k] = s;
 	}
 }
@@ -221,7 +275,7 @@ int irr_sg__apply(const double *y, size_t n, int half, int order, int deriv,
 			s += c[j] * p[j];
 		out[i] = s;
 	}
-	ends(y, n, &F, deriv, c, out);
+	ends(y, n, &F, NULL, deriv, c, out);
 	free(c);
 	return IRR_OK;
 }
@@ -281,13 +335,20 @@ int irr_sg__smooth_d2(const double *y, size_t n, int half, int order, double *s0
 	double c0[2 * 50 + 1], c2[2 * 50 + 1];
 	size_t h;
 	sg_fit F;
+	const sg_cache *C;
 	if (!y || !s0 || !s2 || half < 1 || half > 50 || order < 2 || order > 2 * half ||
 	    order > SG_MAX_ORDER || (size_t)(2 * half + 1) > n)
 		return IRR_EINPUT;
-	if (fit_prepare(&F, half, order) != 0)
-		return IRR_EINPUT;
-	fit_coefficients(&F, 0, 0, c0);
-	fit_coefficients(&F, 2, 0, c2);
+	if ((C = cache_get(half, order)) != NULL) {
+		memcpy(c0, C->c[0], (size_t)(2 * half + 1) * sizeof *c0);
+		memcpy(c2, C->c[1], (size_t)(2 * half + 1) * sizeof *c2);
+		F.half = half;
+	} else {
+		if (fit_prepare(&F, half, order) != 0)
+			return IRR_EINPUT;
+		fit_coefficients(&F, 0, 0, c0);
+		fit_coefficients(&F, 2, 0, c2);
+	}
 	h = (size_t)half;
 	/* Both centre sets are symmetric (even derivatives): fold the window
 	 * once, y[i-k] + y[i+k], and use it for both outputs. Eight (AVX-512),
@@ -332,7 +393,7 @@ int irr_sg__smooth_d2(const double *y, size_t n, int half, int order, double *s0
 		s0[i] = a0;
 		s2[i] = a2;
 	}
-	ends(y, n, &F, 0, c0, s0);
-	ends(y, n, &F, 2, c2, s2);
+	ends(y, n, &F, C, 0, c0, s0);
+	ends(y, n, &F, C, 2, c2, s2);
 	return IRR_OK;
 }
