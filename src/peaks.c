@@ -478,6 +478,61 @@ static double select_net_avx512(const double *a, size_t m, size_t k)
 }
 #endif
 
+#ifdef PK_AVX512
+/* a[i] -= off and b[i] -= off from i, eight at a time (AVX-512F; the
+ * same subtractions). Returns the first index not done. */
+__attribute__((target("avx512f")))
+static size_t sub2_avx512(double *a, double *b, size_t n, size_t i, double off)
+{
+	__m512d vo = _mm512_set1_pd(off);
+	for (; i + 8 <= n; i += 8) {
+		_mm512_storeu_pd(a + i, _mm512_sub_pd(_mm512_loadu_pd(a + i), vo));
+		_mm512_storeu_pd(b + i, _mm512_sub_pd(_mm512_loadu_pd(b + i), vo));
+	}
+	return i;
+}
+
+/* dst[i] = -src[i] from i, eight at a time (AVX-512F; negation flips the
+ * sign bit). Returns the first index not done. */
+__attribute__((target("avx512f")))
+static size_t neg_avx512(double *dst, const double *src, size_t n, size_t i)
+{
+	__m512i sign = _mm512_set1_epi64((long long)0x8000000000000000ULL);
+	for (; i + 8 <= n; i += 8)
+		_mm512_storeu_pd(dst + i, _mm512_castsi512_pd(_mm512_xor_si512(
+		                              _mm512_castpd_si512(_mm512_loadu_pd(src + i)), sign)));
+	return i;
+}
+
+/* The input check's pass from i, eight points at a time (AVX-512F; the
+ * same comparisons): clears *ok when x does not strictly ascend, *fin
+ * when a y is not finite, *uniform when a step leaves med by more than
+ * tol. Returns the first index not done. */
+__attribute__((target("avx512f")))
+static size_t check_avx512(const double *x, const double *y, size_t n, size_t i, double med,
+                           double tol, int *ok, int *fin, int *uniform)
+{
+	__m512d vmed = _mm512_set1_pd(med), vtol = _mm512_set1_pd(tol), big = _mm512_set1_pd(DBL_MAX);
+	__m512i abs = _mm512_set1_epi64(0x7fffffffffffffffLL);
+	__mmask8 vok = 0xff, vfin = 0xff, vnu = 0;
+	for (; i + 8 <= n; i += 8) {
+		__m512d a = _mm512_loadu_pd(x + i - 1), b = _mm512_loadu_pd(x + i);
+		__m512d st = _mm512_sub_pd(_mm512_sub_pd(b, a), vmed);
+		vok &= _mm512_cmp_pd_mask(b, a, _CMP_GT_OQ);
+		vnu |= _mm512_cmp_pd_mask(_mm512_castsi512_pd(_mm512_and_si512(_mm512_castpd_si512(st), abs)),
+		                          vtol, _CMP_GT_OQ);
+		vfin &= _mm512_cmp_pd_mask(_mm512_castsi512_pd(_mm512_and_si512(
+		                               _mm512_castpd_si512(_mm512_loadu_pd(y + i)), abs)),
+		                           big, _CMP_LE_OQ);
+	}
+	*ok &= vok == 0xff;
+	*fin &= vfin == 0xff;
+	if (vnu)
+		*uniform = 0;
+	return i;
+}
+#endif
+
 /* The median of src[0..n-1] (of |src| with absval; src is not changed,
  * scratch holds n) when a neighbouring block's median `near` is known:
  * noise levels change little from block to block, so [near/1.5,
@@ -1418,6 +1473,10 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		 * below find the point to name. */
 		int ok = isfinite(x0[0]) && isfinite(x0[n0 - 1]), fin = fabs(y0[0]) <= DBL_MAX;
 		size_t i = 1;
+#ifdef PK_AVX512
+		if (__builtin_cpu_supports("avx512f"))
+			i = check_avx512(x0, y0, n0, i, med, 0.02 * med, &ok, &fin, &uniform);
+#endif
 #ifdef __SSE2__
 		/* Two points at a time, the same comparisons; no chain of
 		 * additions to wait on. */
@@ -1827,6 +1886,10 @@ checked:
 		}
 		if (off > 0.0) {
 			size_t i = 0;
+#ifdef PK_AVX512
+			if (avx512)
+				i = sub2_avx512(w.c, w.r, n, i, off);
+#endif
 #ifdef __SSE2__
 			__m128d vo = _mm_set1_pd(off);
 			for (; i + 2 <= n; i += 2) {
@@ -2093,6 +2156,10 @@ checked:
 			double *nd2 = w.scratch;
 			size_t *sig = w.stk + nk, ns = 0; /* significant lobes, after kidx */
 			size_t i0 = 0;
+#ifdef PK_AVX512
+			if (__builtin_cpu_supports("avx512f"))
+				i0 = neg_avx512(nd2, w.d2, n, i0);
+#endif
 #ifdef __SSE2__
 			/* Negation flips the sign bit: two at a time. */
 			for (__m128d sign = _mm_set1_pd(-0.0); i0 + 2 <= n; i0 += 2)
