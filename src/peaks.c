@@ -318,17 +318,19 @@ static double median_inplace(double *a, size_t n)
  * done. */
 __attribute__((target("avx512f,popcnt")))
 static size_t bracket_avx512(const double *src, size_t n, size_t i, int absval, double lo,
-                             double hi, double *out, size_t *pm, size_t *pbelow, kth_gather *g)
+                             double hi, double *out, size_t *pm, size_t *pbelow, size_t *pabove,
+                             kth_gather *g)
 {
 	__m512d vlo = _mm512_set1_pd(lo), vhi = _mm512_set1_pd(hi);
 	__m512d glo = _mm512_set1_pd(g ? g->lo : 0.0), ghi = _mm512_set1_pd(g ? g->hi : 0.0);
 	__m512i sign = _mm512_set1_epi64(absval ? 0x7fffffffffffffffLL : -1LL);
-	size_t m = *pm, below = *pbelow;
+	size_t m = *pm, below = *pbelow, above = *pabove;
 	for (; i + 8 <= n; i += 8) {
 		__m512d v = _mm512_castsi512_pd(_mm512_and_si512(
 		                _mm512_castpd_si512(_mm512_loadu_pd(src + i)), sign));
 		__mmask8 in = _mm512_cmp_pd_mask(v, vlo, _CMP_GE_OQ) & _mm512_cmp_pd_mask(v, vhi, _CMP_LE_OQ);
 		below += (size_t)__builtin_popcount(_mm512_cmp_pd_mask(v, vlo, _CMP_LT_OQ));
+		above += (size_t)__builtin_popcount(_mm512_cmp_pd_mask(v, vhi, _CMP_GT_OQ));
 		_mm512_mask_compressstoreu_pd(out + m, in, v);
 		m += (size_t)__builtin_popcount(in);
 		if (g) {
@@ -341,6 +343,7 @@ static size_t bracket_avx512(const double *src, size_t n, size_t i, int absval, 
 	}
 	*pm = m;
 	*pbelow = below;
+	*pabove = above;
 	return i;
 }
 
@@ -537,23 +540,24 @@ static size_t check_avx512(const double *x, const double *y, size_t n, size_t i,
  * scratch holds n) when a neighbouring block's median `near` is known:
  * noise levels change little from block to block, so [near/1.5,
  * near*1.5] likely holds the median. One pass counts what lies below and
- * copies what lies inside to scratch (branch-free: the outcome of each
- * comparison is a coin toss), and only those are searched. When the guess
- * misses (or there is none), all of src is copied and searched. The value
- * is the same either way. With g, the same pass does g's share of a
- * selection over a longer array. */
+ * above and copies what lies inside to scratch (branch-free: the outcome
+ * of each comparison is a coin toss), and only those are searched. When
+ * the guess misses, only the side the median fell on is gathered and
+ * searched; without a guess, or with a NaN among the values, all of src
+ * is. The value is the same every way. With g, the same pass does g's
+ * share of a selection over a longer array. */
 static double median_near(const double *src, size_t n, int absval, double near,
                           double *scratch, kth_gather *g)
 {
 	if (n == 0)
 		return 0.0;
-	size_t k = n / 2, below = 0, m = 0, i = 0;
+	size_t k = n / 2, below = 0, above = 0, m = 0, i = 0;
 	double lo = near > 0.0 ? near / 1.5 : HUGE_VAL, hi = near > 0.0 ? near * 1.5 : -HUGE_VAL;
 	if (!g && !(near > 0.0))
 		goto all;
 #ifdef PK_AVX512
 	if (__builtin_cpu_supports("avx512f") && __builtin_cpu_supports("popcnt"))
-		i = bracket_avx512(src, n, i, absval, lo, hi, scratch, &m, &below, g);
+		i = bracket_avx512(src, n, i, absval, lo, hi, scratch, &m, &below, &above, g);
 #endif
 #ifdef __SSE2__
 	{
@@ -562,7 +566,7 @@ static double median_near(const double *src, size_t n, int absval, double near,
 		__m128d vlo = _mm_set1_pd(lo), vhi = _mm_set1_pd(hi);
 		__m128d glo = _mm_set1_pd(g ? g->lo : 0.0), ghi = _mm_set1_pd(g ? g->hi : 0.0);
 		__m128d sign = absval ? _mm_set1_pd(-0.0) : _mm_setzero_pd();
-		__m128i nb = _mm_setzero_si128(), ngb = nb;
+		__m128i nb = _mm_setzero_si128(), ngb = nb, na = nb;
 		long long t[2];
 		if (g) {
 			double *gb = g->buf;
@@ -572,6 +576,7 @@ static double median_near(const double *src, size_t n, int absval, double near,
 				int in = _mm_movemask_pd(_mm_and_pd(_mm_cmpge_pd(v, vlo), _mm_cmple_pd(v, vhi)));
 				int gin = _mm_movemask_pd(_mm_and_pd(_mm_cmpge_pd(v, glo), _mm_cmple_pd(v, ghi)));
 				nb = _mm_sub_epi64(nb, _mm_castpd_si128(_mm_cmplt_pd(v, vlo)));
+				na = _mm_sub_epi64(na, _mm_castpd_si128(_mm_cmpgt_pd(v, vhi)));
 				ngb = _mm_sub_epi64(ngb, _mm_castpd_si128(_mm_cmplt_pd(v, glo)));
 				_mm_storel_pd(scratch + m, v);
 				m += (size_t)(in & 1);
@@ -590,6 +595,7 @@ static double median_near(const double *src, size_t n, int absval, double near,
 				__m128d v = _mm_andnot_pd(sign, _mm_loadu_pd(src + i));
 				int in = _mm_movemask_pd(_mm_and_pd(_mm_cmpge_pd(v, vlo), _mm_cmple_pd(v, vhi)));
 				nb = _mm_sub_epi64(nb, _mm_castpd_si128(_mm_cmplt_pd(v, vlo)));
+				na = _mm_sub_epi64(na, _mm_castpd_si128(_mm_cmpgt_pd(v, vhi)));
 				_mm_storel_pd(scratch + m, v);
 				m += (size_t)(in & 1);
 				_mm_storeh_pd(scratch + m, v);
@@ -598,12 +604,15 @@ static double median_near(const double *src, size_t n, int absval, double near,
 		}
 		_mm_storeu_si128((__m128i *)t, nb);
 		below += (size_t)(t[0] + t[1]);
+		_mm_storeu_si128((__m128i *)t, na);
+		above += (size_t)(t[0] + t[1]);
 	}
 #endif
 	for (; i < n; i++) {
 		double v = absval ? fabs(src[i]) : src[i];
 		scratch[m] = v;
 		below += v < lo;
+		above += v > hi;
 		m += (v >= lo) & (v <= hi);
 		if (g) {
 			g->buf[g->m] = v;
@@ -619,6 +628,21 @@ static double median_near(const double *src, size_t n, int absval, double near,
 			return select_net_avx512(scratch, m, k - below);
 #endif
 		return select_small(scratch, m, k - below);
+	}
+	if (near > 0.0 && below + m + above == n) {
+		/* Missed, and no NaN (the three counts add up): the median is
+		 * the right order statistic of the side it fell on. */
+		size_t j = 0, kk = k < below ? k : k - below - m;
+		for (i = 0; i < n; i++) {
+			double v = absval ? fabs(src[i]) : src[i];
+			scratch[j] = v;
+			j += k < below ? v < lo : v > hi;
+		}
+#ifdef PK_AVX512
+		if (j <= 64 && __builtin_cpu_supports("avx512f"))
+			return select_net_avx512(scratch, j, kk);
+#endif
+		return select_small(scratch, j, kk);
 	}
 all:
 	for (i = 0; i < n; i++)
