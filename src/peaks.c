@@ -1330,8 +1330,15 @@ static inline double area_term(const double *x, const double *c, size_t j, doubl
                                double sl, double *u)
 {
 	double v = c[j + 1] - (y1 + sl * (x[j + 1] - x1)), t;
+#ifdef __SSE2__
+	/* v < 0 ? 0 : v without a branch (on the baseline between bands v
+	 * is noise about 0): MAXSD returns its second operand unless the
+	 * first is greater, so -0 and NaN stay as they are. */
+	v = _mm_cvtsd_f64(_mm_max_sd(_mm_set_sd(0.0), _mm_set_sd(v)));
+#else
 	if (v < 0.0)
 		v = 0.0;
+#endif
 	t = 0.5 * (*u + v) * (x[j + 1] - x[j]);
 	*u = v;
 	return t;
