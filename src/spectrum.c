@@ -561,7 +561,7 @@ static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *er
 		for (size_t i = i0; i < n; i++) {
 			double v = y[i];
 			tmin = v < tmin ? v : tmin;
-			tminpos = (v > 0) & (v < tminpos) ? v : tminpos;
+			tminpos = ((v > 0) & (v < tminpos)) ? v : tminpos;
 			sat[i] = v <= T_FLOOR;
 			nsat_pts += v <= T_FLOOR;
 		}
