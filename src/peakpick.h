@@ -30,6 +30,9 @@ void irr_peaks__sort(irr_peaklist *pl);
  * already stored, with the class thresholds of `o`. Peaks whose height is 0
  * and whose intensity is already set keep their class. */
 void irr_peaks__classify(irr_peaklist *pl, const irr_peak_options *o);
+/* The strongest unsaturated height of p[0..n-1] (saturated ones only when
+ * nothing else is there): what the relative floor is taken against. */
+double irr_peaks__reference_height(const irr_peak *p, size_t n);
 
 /* Savitzky & Golay, Anal. Chem. 36 (1964) 1627: least-squares polynomial
  * of degree `order` over 2*half+1 equally spaced points, evaluated (or its

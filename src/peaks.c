@@ -118,6 +118,27 @@ void irr_peaks__sort(irr_peaklist *pl)
 		qsort(pl->peaks, pl->count, sizeof *pl->peaks, cmp_desc);
 }
 
+/* The height the relative floor (min_rel_height) is taken against: the
+ * strongest band that is not saturated. A clipped band's height is only the
+ * instrument's ceiling (A = 5 in one shared ATR file, where the next band
+ * reaches 0.76), so a floor taken against it would drop real bands by an
+ * arbitrary factor. Only when every band is saturated do their heights
+ * serve. (Relative heights and classes still count a saturated band as the
+ * strongest: it is.) */
+double irr_peaks__reference_height(const irr_peak *p, size_t n)
+{
+	double hmax = 0.0, hsat = 0.0;
+	for (size_t i = 0; i < n; i++) {
+		if (p[i].saturated) {
+			if (p[i].height > hsat)
+				hsat = p[i].height;
+		} else if (p[i].height > hmax) {
+			hmax = p[i].height;
+		}
+	}
+	return hmax > 0.0 ? hmax : hsat;
+}
+
 void irr_peaks__classify(irr_peaklist *pl, const irr_peak_options *o)
 {
 	double hmax = 0.0;
@@ -1991,9 +2012,12 @@ checked:
 			if (w.c[i] > hmax)
 				hmax = w.c[i];
 		}
-		for (size_t i = 0; nsat && i < n; i++)
-			if ((w.satm[i] & 1) && w.c[i] > hmax)
-				hmax = w.c[i];
+		/* Saturated ranges do not set the floor (see
+		 * irr_peaks__reference_height), unless nothing else is there. */
+		if (hmax == 0.0)
+			for (size_t i = 0; nsat && i < n; i++)
+				if ((w.satm[i] & 1) && w.c[i] > hmax)
+					hmax = w.c[i];
 		/* The relative floor is applied now, before widths and valleys
 		 * are measured, so that ripple on a broad band (dropped here)
 		 * does not cut the broad band's width short. A maximum is judged
@@ -2321,10 +2345,7 @@ checked:
 	/* Drop what is below the relative floor (never a saturated band). */
 	{
 		size_t m = 0;
-		double hmax = 0.0;
-		for (size_t i = 0; i < pl->count; i++)
-			if (pl->peaks[i].height > hmax)
-				hmax = pl->peaks[i].height;
+		double hmax = irr_peaks__reference_height(pl->peaks, pl->count);
 		/* Shoulders have no prominence; they are judged by height. */
 		for (size_t i = 0; i < pl->count; i++) {
 			const irr_peak *p = &pl->peaks[i];
