@@ -310,14 +310,19 @@ static void reference_spectra_wrong_structures(void **state)
 
 /* ---- Mixtures ---- */
 
-/* A spectrum of first + frac x second, in absorbance on first's axis. */
+/* A spectrum of first + frac x second, in absorbance on first's axis. Where
+ * the first file is clipped (its saturated ranges: the instrument's ceiling,
+ * A = 5 in toluene-atr.csv), the mixture is clipped at the same ceiling, as
+ * the instrument would have recorded it: a clipped trace plus another is
+ * not a spectrum any instrument writes, and its uneven top would pass for a
+ * real band five times stronger than anything else in the file. */
 static irr_spectrum *mix(const char *first, const char *second, double frac)
 {
 	irr_spectrum *a = read_ref(first), *b = read_ref(second), *m = NULL;
 	irr_error err;
 	size_t na, nb, j = 0;
 	const double *xa, *ya, *xb, *yb;
-	double *y;
+	double *y, ceiling = 0;
 	assert_int_equal(irr_spectrum_normalise(a, &err), IRR_OK);
 	assert_int_equal(irr_spectrum_normalise(b, &err), IRR_OK);
 	na = irr_spectrum_points(a), nb = irr_spectrum_points(b);
@@ -335,7 +340,18 @@ static irr_spectrum *mix(const char *first, const char *second, double frac)
 			v = yb[j] + t * (yb[j + 1] - yb[j]);
 		}
 		y[i] = ya[i] + frac * v;
+		for (size_t k = 0; k < irr_spectrum_saturated_count(a); k++) {
+			double lo, hi;
+			irr_spectrum_saturated_range(a, k, &lo, &hi);
+			if (xa[i] >= lo && xa[i] <= hi)
+				ceiling = y[i] = ya[i];
+		}
 	}
+	/* The ceiling holds for every point, not only those clipped in the
+	 * first file. */
+	for (size_t i = 0; ceiling > 0 && i < na; i++)
+		if (y[i] > ceiling)
+			y[i] = ceiling;
 	assert_int_equal(irr_spectrum_from_xy(&m, xa, y, na, IRR_Y_ABSORBANCE, "mixture", &err), IRR_OK);
 	free(y);
 	irr_spectrum_free(a);
@@ -366,16 +382,19 @@ static void mixture_row(char **f, int nf)
 		}
 		irr_check_free(c);
 
+		/* from_20: the 10 % level is a known miss (cause in the file). */
 		c = run_check(f[1], mix(f[0], f[3], fracs[k]), NULL, smp, NULL, NULL);
-		if (!strcmp(f[6], "not_consistent") && irr_check_verdict(c) == IRR_VERDICT_CONSISTENT) {
+		int known_miss = !strcmp(f[6], "from_20") && k == 0;
+		assert_true(!strcmp(f[6], "not_consistent") || !strcmp(f[6], "from_20"));
+		if (!known_miss && irr_check_verdict(c) == IRR_VERDICT_CONSISTENT) {
 			print_message("%s + %.0f%% %s with nothing named came out consistent\n", f[0],
 			              100 * fracs[k], f[3]);
 			nmixfail++;
-		} else if (!strcmp(f[6], "below_limit") && irr_check_verdict(c) != IRR_VERDICT_CONSISTENT) {
+		} else if (known_miss && irr_check_verdict(c) != IRR_VERDICT_CONSISTENT) {
 			print_message("note: %s + %.0f%% %s is now noticed without its name\n", f[0],
 			              100 * fracs[k], f[3]);
 		}
-		if (!strcmp(f[6], "not_consistent"))
+		if (!known_miss)
 			nunnamed++;
 		irr_check_free(c);
 		nmix++;
@@ -389,7 +408,7 @@ static void mixtures_find_the_second_compound(void **state)
 	each_row("mixtures.tsv", mixture_row);
 	assert_int_equal(nmixfail, 0);
 	assert_true(nmix >= 30);
-	assert_true(nunnamed >= 12);
+	assert_true(nunnamed >= 34);
 }
 
 /* A starting material whose groups the product has too has no marker band
