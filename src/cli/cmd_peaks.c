@@ -26,7 +26,7 @@ static const cli_opt opts[] = {
 	{"--micrometres", NULL, "CSV: X is wavelength in micrometres"},
 	{"--smooth", "CM", "Savitzky-Golay window, cm-1 (default: auto, 7 cm-1)"},
 	{"--min-snr", "X", "minimum prominence in noise units (default 5)"},
-	{"--min-rel", "F", "drop bands under F of the strongest (default 0.01)"},
+	{"--min-rel", "F", "drop bands below F x strongest unclipped (default 0.01)"},
 	{"--strong", "F", "relative height for 'strong' (default 0.33)"},
 	{"--medium", "F", "relative height for 'medium' (default 0.10)"},
 	{"--broad", "CM", "FWHM at or above which a band is broad (default 75)"},
