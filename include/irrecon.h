@@ -31,6 +31,7 @@
 #include "irrecon/structure.h"
 #include "irrecon/keys.h"
 #include "irrecon/perceive.h"
+#include "irrecon/structcache.h"
 #include "irrecon/tables.h"
 #include "irrecon/predict.h"
 #include "irrecon/reconcile.h"

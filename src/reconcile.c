@@ -11,6 +11,7 @@
 #include "irrecon/reconcile.h"
 #include "assign.h"
 #include "solvents.h"
+#include "structcache_internal.h"
 
 #include <ctype.h>
 #include <math.h>
@@ -115,8 +116,9 @@ typedef struct other_in {
 	char *given;
 	char *smiles;
 	const irr_solvent *solvent;  /* borrowed from the library */
-	irr_molecule *mol;
+	irr_molecule *mol;           /* owned, or the cached entry's */
 	irr_inventory *inv;
+	irr_sc_entry *cached;        /* the structure cache's entry, or NULL */
 	irr_prediction *pred;        /* made in run */
 	other_band *bands;
 	size_t nbands;
@@ -133,8 +135,10 @@ struct irr_check {
 	shared_lib *sl;
 
 	char *smiles;
-	irr_molecule *mol;
+	irr_molecule *mol;           /* owned, or the cached entry's */
 	irr_inventory *inv;
+	irr_sc_entry *cached;        /* the structure cache's entry, or NULL */
+	irr_structure_cache *sc;     /* borrowed, or NULL */
 
 	other_in *others;
 	size_t nothers;
@@ -254,6 +258,44 @@ int irr_check_create(irr_check **out, const irr_tables *t, irr_error *err)
 	return IRR_OK;
 }
 
+/* A molecule and its inventory: read and perceived now (cached NULL), or
+ * borrowed from the structure cache with one reference held. */
+static int structure_get(irr_check *c, const char *smiles, const char *name,
+                         irr_molecule **m, irr_inventory **inv, irr_sc_entry **cached,
+                         int *perceive_failed, irr_error *err)
+{
+	int rc;
+	*m = NULL, *inv = NULL, *cached = NULL;
+	*perceive_failed = 0;
+	if (c->sc) {
+		if ((rc = irr_structure_cache__get(c->sc, smiles, name, cached, perceive_failed,
+		                                   err)) != IRR_OK)
+			return rc;
+		/* Never changed through these: every reader takes them const. */
+		*m = (*cached)->mol;
+		*inv = (*cached)->inv;
+		return IRR_OK;
+	}
+	if ((rc = irr_molecule_from_smiles(m, smiles, name, err)) != IRR_OK)
+		return rc;
+	if ((rc = irr_perceive(inv, *m, c->t, err)) != IRR_OK) {
+		irr_molecule_free(*m);
+		*m = NULL;
+		*perceive_failed = 1;
+	}
+	return rc;
+}
+
+static void structure_release(irr_molecule *m, irr_inventory *inv, irr_sc_entry *cached)
+{
+	if (cached) {
+		irr_sc_entry__release(cached);
+		return;
+	}
+	irr_inventory_free(inv);
+	irr_molecule_free(m);
+}
+
 void irr_check_free(irr_check *c)
 {
 	if (!c)
@@ -262,12 +304,10 @@ void irr_check_free(irr_check *c)
 	for (size_t i = 0; i < c->nothers; i++) {
 		free(c->others[i].given);
 		free(c->others[i].smiles);
-		irr_inventory_free(c->others[i].inv);
-		irr_molecule_free(c->others[i].mol);
+		structure_release(c->others[i].mol, c->others[i].inv, c->others[i].cached);
 	}
 	free(c->others);
-	irr_inventory_free(c->inv);
-	irr_molecule_free(c->mol);
+	structure_release(c->mol, c->inv, c->cached);
 	free(c->smiles);
 	input_release(c->in);
 	lib_release(c->sl);
@@ -328,6 +368,12 @@ static int ensure_lib(irr_check *c, irr_error *err)
 	return rc;
 }
 
+void irr_check_use_structure_cache(irr_check *c, irr_structure_cache *sc)
+{
+	if (c)
+		c->sc = sc;
+}
+
 int irr_check_use_solvents(irr_check *c, const irr_solvent_library *lib, irr_error *err)
 {
 	shared_lib *sl;
@@ -351,28 +397,25 @@ int irr_check_set_structure_named(irr_check *c, const char *smiles,
 {
 	irr_molecule *m = NULL;
 	irr_inventory *inv = NULL;
+	irr_sc_entry *cached = NULL;
 	char *s;
 	double t0 = now_seconds();
-	int rc;
+	int rc, perceive_failed;
 	if (!smiles || !*smiles)
 		return irr_error_set(err, IRR_EINPUT, name ? name : "SMILES", 0, "empty structure");
-	if ((rc = irr_molecule_from_smiles(&m, smiles, name ? name : "SMILES", err)))
+	if ((rc = structure_get(c, smiles, name ? name : "SMILES", &m, &inv, &cached,
+	                        &perceive_failed, err)))
 		return rc;
-	if ((rc = irr_perceive(&inv, m, c->t, err))) {
-		irr_molecule_free(m);
-		return rc;
-	}
 	if (!(s = strdup(smiles))) {
-		irr_inventory_free(inv);
-		irr_molecule_free(m);
+		structure_release(m, inv, cached);
 		return irr_error_set(err, IRR_ENOMEM, "", 0, "out of memory");
 	}
 	clear_result(c);
-	irr_inventory_free(c->inv);
-	irr_molecule_free(c->mol);
+	structure_release(c->mol, c->inv, c->cached);
 	free(c->smiles);
 	c->mol = m;
 	c->inv = inv;
+	c->cached = cached;
 	c->smiles = s;
 	c->timing.perceive = now_seconds() - t0;
 	return IRR_OK;
@@ -415,7 +458,16 @@ int irr_check_add_other(irr_check *c, irr_other_kind kind, const char *what,
 	{
 		irr_error perr;
 		irr_error_clear(&perr);
-		rc = irr_molecule_from_smiles(&o.mol, o.smiles, "SMILES", &perr);
+		int perceive_failed = 0;
+		rc = structure_get(c, o.smiles, "SMILES", &o.mol, &o.inv, &o.cached,
+		                   &perceive_failed, &perr);
+		/* A structure that reads but cannot be perceived: the
+		 * perception's own error. */
+		if (rc && perceive_failed) {
+			if (err)
+				*err = perr;
+			goto fail;
+		}
 		if (rc) {
 			if (o.solvent)
 				irr_error_set(err, rc, o.solvent->name, 0, "library SMILES '%s': %s",
@@ -427,8 +479,6 @@ int irr_check_add_other(irr_check *c, irr_other_kind kind, const char *what,
 			goto fail;
 		}
 	}
-	if ((rc = irr_perceive(&o.inv, o.mol, c->t, err)))
-		goto fail;
 	clear_result(c); /* before the array moves: it frees per-substance results */
 	grown = realloc(c->others, (c->nothers + 1) * sizeof *grown);
 	if (!grown) {
@@ -439,8 +489,7 @@ int irr_check_add_other(irr_check *c, irr_other_kind kind, const char *what,
 	c->others[c->nothers++] = o;
 	return IRR_OK;
 fail:
-	irr_inventory_free(o.inv);
-	irr_molecule_free(o.mol);
+	structure_release(o.mol, o.inv, o.cached);
 	free(o.smiles);
 	free(o.given);
 	return rc;
@@ -499,6 +548,7 @@ int irr_check_clone_inputs(irr_check **out, const irr_check *src, irr_error *err
 	if ((rc = irr_check_create(&c, src->t, err)))
 		return rc;
 	irr_check_set_options(c, &src->opt);
+	c->sc = src->sc;
 	if (src->in) {
 		c->in = src->in;
 		c->in->refs++;

@@ -123,6 +123,7 @@ int irr_request_clone(irr_request **out, const irr_request *r, irr_error *err)
 	c->peak = r->peak;
 	c->units = r->units;
 	c->solvents_lib = r->solvents_lib;
+	c->structures = r->structures;
 	if (set_str(&c->sample, r->sample) || set_str(&c->structure, r->structure) ||
 	    set_str(&c->spectrum_file, r->spectrum_file) ||
 	    set_str(&c->peaks_file, r->peaks_file) || set_str(&c->base_dir, r->base_dir) ||
@@ -235,6 +236,12 @@ int irr_request_set_phase(irr_request *r, irr_phase p)
 int irr_request_use_solvents(irr_request *r, const irr_solvent_library *lib)
 {
 	r->solvents_lib = lib;
+	return IRR_OK;
+}
+
+int irr_request_use_structure_cache(irr_request *r, irr_structure_cache *sc)
+{
+	r->structures = sc;
 	return IRR_OK;
 }
 
@@ -933,6 +940,7 @@ int irr_request__run_timed(irr_check **out, const irr_request *r,
 	irr_check_set_options(c, &o);
 	if (r->solvents_lib && (rc = irr_check_use_solvents(c, r->solvents_lib, err)) != IRR_OK)
 		goto done;
+	irr_check_use_structure_cache(c, r->structures);
 	if ((rc = irr_check_set_structure_named(c, r->structure, name, err)) != IRR_OK ||
 	    (rc = other_list(c, IRR_OTHER_STARTING_MATERIAL, &r->starting_materials, err)) != IRR_OK ||
 	    (rc = other_list(c, IRR_OTHER_REAGENT, &r->reagents, err)) != IRR_OK ||

@@ -33,6 +33,7 @@ struct irr_request {
 	char *tables_dir;
 	irr_strlist extra_tables;
 	const irr_solvent_library *solvents_lib; /* borrowed; NULL: each run loads it */
+	irr_structure_cache *structures;         /* borrowed; NULL: each run perceives its own */
 };
 
 /* Appends the ';'-separated, trimmed, non-empty items of s. */

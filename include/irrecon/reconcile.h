@@ -22,6 +22,7 @@
 #include "irrecon/tables.h"
 #include "irrecon/predict.h"
 #include "irrecon/solvents.h"
+#include "irrecon/structcache.h"
 
 #ifdef __cplusplus
 extern "C" {
@@ -126,6 +127,13 @@ int irr_check_set_structure_named(irr_check *c, const char *smiles,
  * that are not valid SMILES are IRR_EINPUT. */
 int irr_check_add_other(irr_check *c, irr_other_kind kind, const char *what,
                         irr_error *err);
+
+/* Takes structures (the product's and every other substance's) from `sc`
+ * (borrowed: keep it alive while the check and its clones live; NULL: read
+ * and perceive each one here), so that a run meeting the same SMILES many times parses it
+ * once. The result is the same either way. Call before
+ * irr_check_set_structure and irr_check_add_other. */
+void irr_check_use_structure_cache(irr_check *c, irr_structure_cache *sc);
 
 /* Uses an already loaded solvent library (borrowed: keep it alive while
  * the check and its clones live) instead of loading one per check; for

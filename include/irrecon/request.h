@@ -64,6 +64,10 @@ int irr_request_set_sampling(irr_request *r, irr_sampling sampling);
  * while the request and its clones run) instead of loading it each time;
  * a batch loads it once for all samples. NULL goes back to loading. */
 int irr_request_use_solvents(irr_request *r, const irr_solvent_library *lib);
+/* Runs take their structures from this cache (borrowed: keep it alive while
+ * the request, its clones and the checks they made live); a batch keeps
+ * one for all samples. NULL: each run reads and perceives its own. */
+int irr_request_use_structure_cache(irr_request *r, irr_structure_cache *sc);
 /* The folder relative paths resolve against (NULL: current directory). */
 int irr_request_set_base_dir(irr_request *r, const char *dir);
 

@@ -625,6 +625,7 @@ int cmd_batch(int argc, char **argv)
 	irr_tables *t = NULL;
 	irr_request *base = NULL;
 	irr_solvent_library *solvents = NULL;
+	irr_structure_cache *structures = NULL;
 	irr_batch_timing timing;
 	irr_error err;
 	output o;
@@ -725,11 +726,14 @@ int cmd_batch(int argc, char **argv)
 	/* One solvent library for every sample, as checks would load it. */
 	if (irr_manifest_read_file(&m, manifest_path, fmt, 0, &err) != IRR_OK ||
 	    irr_tables_load(&t, tables_dir, extra, nextra, &err) != IRR_OK ||
-	    irr_solvents_load(&solvents, NULL, &err) != IRR_OK) {
+	    irr_solvents_load(&solvents, NULL, &err) != IRR_OK ||
+	    irr_structure_cache_create(&structures, t, 0, &err) != IRR_OK) {
 		status = cli_fail(&err);
 		goto done;
 	}
 	irr_request_use_solvents(base, solvents);
+	/* Each worker process fills its own copy: no sharing between them. */
+	irr_request_use_structure_cache(base, structures);
 	sel = selection = malloc((irr_manifest_count(m) + 1) * sizeof *sel);
 	if (!sel) {
 		status = cli_usage_error("batch", "out of memory");
@@ -793,6 +797,7 @@ done:
 	selection = NULL;
 	free(extra);
 	irr_request_free(base);
+	irr_structure_cache_free(structures);
 	irr_solvents_free(solvents);
 	irr_tables_free(t);
 	irr_manifest_free(m);
