@@ -1590,7 +1590,13 @@ int irr_check_run(irr_check *c, irr_error *err)
 				int fp_class = 0;
 				for (size_t q = 0; q < oi->nmarkers; q++) {
 					const irr_marker *mk = &oi->markers[q];
-					if (mk->observable && mk->typical < 1500 && mk->peak >= 0) {
+					int again = 0;
+					/* one peak found for two markers is one coincidence */
+					for (size_t q2 = 0; q2 < q; q2++)
+						if (oi->markers[q2].peak == mk->peak && oi->markers[q2].observable &&
+						    oi->markers[q2].typical < 1500)
+							again = 1;
+					if (mk->observable && mk->typical < 1500 && mk->peak >= 0 && !again) {
 						fp_found++;
 						if (iclass(mk->intensity) > fp_class)
 							fp_class = iclass(mk->intensity);
