@@ -14,7 +14,10 @@
 
 static double round_to(double v, int decimals)
 {
-	double f = pow(10.0, decimals);
+	/* The same values pow(10, d) gives (powers of ten up to 1e22 are exact
+	 * doubles), without its cost on every number written. */
+	static const double p10[] = {1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9};
+	double f = decimals >= 0 && decimals < 10 ? p10[decimals] : pow(10.0, decimals);
 	double r = floor(v * f + 0.5) / f;
 	return r == 0.0 ? 0.0 : r; /* no "-0" */
 }
