@@ -1838,8 +1838,8 @@ int irr_check_run(irr_check *c, irr_error *err)
 			 * within 15 cm-1. Nothing else there comes in such a pair
 			 * (water dissolved in the sample absorbs near 3690 and 3610,
 			 * above the window), so even weak bands decide: a fiftieth of
-			 * the product's typical band (ethylbenzene.jdx with 10 %
-			 * aniline.jdx: 3496 and 3414 cm-1, 0.03 of it). */
+			 * the product's typical band (ethylbenzene.jdx with 20 %
+			 * aniline.jdx: 3495 and 3414 cm-1, 0.04 and 0.05 of it). */
 			{
 				const irr_counts *k = irr_inventory_counts(c->inv);
 				for (size_t a = 0; a < np && k->n_h == 0 && k->o_h == 0 && c->product_ref > 0; a++) {
