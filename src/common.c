@@ -37,10 +37,15 @@ int irr_error_set(irr_error *err, int code, const char *file, long line,
 		va_end(ap);
 		uselocale(old);
 	}
-	/* One-line errors: a stray newline from a quoted input would split it. */
+	/* One-line errors: a stray newline from a quoted input would split it.
+	 * File names come from inputs too (a request may name any path): their
+	 * control characters show as '?', as ls -q shows them. */
 	for (char *p = err->message; *p; p++)
 		if (*p == '\n' || *p == '\r')
 			*p = ' ';
+	for (char *p = err->file; *p; p++)
+		if ((unsigned char)*p < 0x20 || *p == 0x7f)
+			*p = '?';
 	return code;
 }
 
