@@ -38,10 +38,13 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
-#ifdef __SSE2__
+/* IRR_NO_SIMD (a build for tests) keeps every vector path out, so that the
+ * plain C the other processors run is tested too (tests/scripts/simd_fallback.sh). */
+#if defined(__SSE2__) && !defined(IRR_NO_SIMD)
 #include <emmintrin.h>
+#define IRR_SSE2 1
 #endif
-#if defined(__x86_64__) && defined(__GNUC__)
+#if defined(__x86_64__) && defined(__GNUC__) && !defined(IRR_NO_SIMD)
 #include <immintrin.h>
 #define PK_AVX512 1
 #endif
@@ -580,7 +583,7 @@ static double median_near(const double *src, size_t n, int absval, double near,
 	if (__builtin_cpu_supports("avx512f") && __builtin_cpu_supports("popcnt"))
 		i = bracket_avx512(src, n, i, absval, lo, hi, scratch, &m, &below, &above, g);
 #endif
-#ifdef __SSE2__
+#ifdef IRR_SSE2
 	{
 		/* Two values at a time, kept in their order; the counts add up
 		 * the comparisons' all-ones lanes (-1 each). */
@@ -730,7 +733,7 @@ static size_t argmin_block(const double *y, size_t a, size_t e, int *finite)
 	size_t i = a, mi = a;
 	double mv = y[a];
 	int fin = 1;
-#ifdef __SSE2__
+#ifdef IRR_SSE2
 	if (e - a >= 8) {
 		__m128d v0 = _mm_loadu_pd(y + a), v1 = _mm_loadu_pd(y + a + 2);
 		__m128d i0 = _mm_set_pd((double)(a + 1), (double)a);
@@ -922,7 +925,7 @@ static void hull_subtract(const double *x, const double *y, const double *raw, s
 				if (avx512)
 					i = hull_cand_avx512(x, y, i, e, xa, ya, slope, margin, pts, &m);
 #endif
-#ifdef __SSE2__
+#ifdef IRR_SSE2
 				__m128d vxa = _mm_set1_pd(xa), vya = _mm_set1_pd(ya);
 				__m128d vsl = _mm_set1_pd(slope), vmg = _mm_set1_pd(margin);
 				for (; i + 2 <= e; i += 2) {
@@ -965,7 +968,7 @@ static void hull_subtract(const double *x, const double *y, const double *raw, s
 		if (avx512)
 			i = hull_take_avx512(x, y, raw, i, end, xa, ya, slope, c, r);
 #endif
-#ifdef __SSE2__
+#ifdef IRR_SSE2
 		__m128d vxa = _mm_set1_pd(xa), vya = _mm_set1_pd(ya), vsl = _mm_set1_pd(slope);
 		for (; i + 2 <= end; i += 2) {
 			__m128d base = _mm_add_pd(vya, _mm_mul_pd(vsl, _mm_sub_pd(_mm_loadu_pd(x + i), vxa)));
@@ -1062,7 +1065,7 @@ static size_t prominence_bases(const double *c, size_t n, double floor, double *
 	if (__builtin_cpu_supports("avx512f") && __builtin_cpu_supports("popcnt"))
 		i = gather_avx512(c, n, i, floor, tv, ti, mx, &m, &nmx, &nan);
 #endif
-#ifdef __SSE2__
+#ifdef IRR_SSE2
 	{
 		/* Two points at a time: the same tests, lane by lane. */
 		__m128d zero = _mm_setzero_pd(), fl = _mm_set1_pd(floor);
@@ -1351,7 +1354,7 @@ static inline double area_term(const double *x, const double *c, size_t j, doubl
                                double sl, double *u)
 {
 	double v = c[j + 1] - (y1 + sl * (x[j + 1] - x1)), t;
-#ifdef __SSE2__
+#ifdef IRR_SSE2
 	/* v < 0 ? 0 : v without a branch (on the baseline between bands v
 	 * is noise about 0): MAXSD returns its second operand unless the
 	 * first is greater, so -0 and NaN stay as they are. */
@@ -1529,7 +1532,7 @@ int irr_peaks__pick_xy(irr_peaklist **out, const double *x0, const double *y0,
 		if (__builtin_cpu_supports("avx512f"))
 			i = check_avx512(x0, y0, n0, i, med, 0.02 * med, &ok, &fin, &uniform);
 #endif
-#ifdef __SSE2__
+#ifdef IRR_SSE2
 		/* Two points at a time, the same comparisons; no chain of
 		 * additions to wait on. */
 		{
@@ -1734,7 +1737,7 @@ checked:
 		 * global levels) and the smallest nonzero step (for the
 		 * quantisation floor below). */
 		size_t i = 0;
-#ifdef __SSE2__
+#ifdef IRR_SSE2
 		/* Two points at a time, each lane with the scalar operations;
 		 * the extremes and the least step are the same values in any
 		 * order. */
@@ -1877,7 +1880,7 @@ checked:
 					if (!nsat && avx512)
 						i = below_avx512(w.c, e, i, thr, sel, &cnt, u, cand, &nc);
 #endif
-#ifdef __SSE2__
+#ifdef IRR_SSE2
 					/* Two at a time where nothing is saturated. */
 					__m128d vt = _mm_set1_pd(thr), vu = _mm_set1_pd(u);
 					for (; !nsat && i + 2 <= e; i += 2) {
@@ -1908,7 +1911,7 @@ checked:
 					if (avx512)
 						j = below_avx512(cand, ce, j, thr, sel, &cnt, 0.0, NULL, NULL);
 #endif
-#ifdef __SSE2__
+#ifdef IRR_SSE2
 					__m128d vt = _mm_set1_pd(thr);
 					for (; j + 2 <= ce; j += 2) {
 						__m128d v = _mm_loadu_pd(cand + j);
@@ -1942,7 +1945,7 @@ checked:
 			if (avx512)
 				i = sub2_avx512(w.c, w.r, n, i, off);
 #endif
-#ifdef __SSE2__
+#ifdef IRR_SSE2
 			__m128d vo = _mm_set1_pd(off);
 			for (; i + 2 <= n; i += 2) {
 				_mm_storeu_pd(w.c + i, _mm_sub_pd(_mm_loadu_pd(w.c + i), vo));
@@ -2215,7 +2218,7 @@ checked:
 			if (__builtin_cpu_supports("avx512f"))
 				i0 = neg_avx512(nd2, w.d2, n, i0);
 #endif
-#ifdef __SSE2__
+#ifdef IRR_SSE2
 			/* Negation flips the sign bit: two at a time. */
 			for (__m128d sign = _mm_set1_pd(-0.0); i0 + 2 <= n; i0 += 2)
 				_mm_storeu_pd(nd2 + i0, _mm_xor_pd(_mm_loadu_pd(w.d2 + i0), sign));

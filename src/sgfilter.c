@@ -12,10 +12,13 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
-#ifdef __SSE2__
+/* IRR_NO_SIMD (a build for tests) keeps every vector path out, so that the
+ * plain C the other processors run is tested too (tests/scripts/simd_fallback.sh). */
+#if defined(__SSE2__) && !defined(IRR_NO_SIMD)
 #include <emmintrin.h>
+#define IRR_SSE2 1
 #endif
-#if defined(__x86_64__) && defined(__GNUC__)
+#if defined(__x86_64__) && defined(__GNUC__) && !defined(IRR_NO_SIMD)
 #include <immintrin.h>
 #define SG_AVX 1
 #endif
@@ -363,7 +366,7 @@ int irr_sg__smooth_d2(const double *y, size_t n, int half, int order, double *s0
 	if (__builtin_cpu_supports("avx"))
 		i0 = centre_avx(y, n, h, i0, c0, c2, s0, s2);
 #endif
-#ifdef __SSE2__
+#ifdef IRR_SSE2
 	{
 		__m128d k0[51], k2[51];
 		for (size_t k = 0; k <= h; k++) {

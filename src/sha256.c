@@ -8,7 +8,7 @@
 
 #include <string.h>
 
-#if defined(__x86_64__) || defined(__i386__)
+#if (defined(__x86_64__) || defined(__i386__)) && !defined(IRR_NO_SIMD)
 #include <cpuid.h>
 #include <immintrin.h>
 #include <stdatomic.h>

@@ -12,8 +12,11 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#ifdef __SSE2__
+/* IRR_NO_SIMD (a build for tests) keeps every vector path out, so that the
+ * plain C the other processors run is tested too (tests/scripts/simd_fallback.sh). */
+#if defined(__SSE2__) && !defined(IRR_NO_SIMD)
 #include <emmintrin.h>
+#define IRR_SSE2 1
 #endif
 
 /* Transmittance (fraction) at or below which the detector is taken to see
@@ -423,7 +426,7 @@ static double highest(const double *y, size_t n)
 {
 	double hi = y[0];
 	size_t i = 1;
-#ifdef __SSE2__
+#ifdef IRR_SSE2
 	if (n >= 3) {
 		__m128d h = _mm_set1_pd(hi);
 		double t[2];
@@ -535,7 +538,7 @@ static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *er
 		 * floor), or the minimum is clipped flat. */
 		double tmin = y[0], tminpos = HUGE_VAL, ceiling;
 		size_t i0 = 0;
-#ifdef __SSE2__
+#ifdef IRR_SSE2
 		/* Two at a time: the lowest values are the same in any order. */
 		{
 			__m128d lo = _mm_set1_pd(tmin), lp = _mm_set1_pd(HUGE_VAL);
@@ -651,7 +654,7 @@ int irr_spectrum_normalise(irr_spectrum *s, irr_error *err)
 	 * high to low wavenumber); micrometres are reversed after conversion. */
 	if (!s->x_micrometers && s->x[0] > s->x[s->n - 1]) {
 		size_t i = 0;
-#ifdef __SSE2__
+#ifdef IRR_SSE2
 		/* Two at a time, their order swapped. */
 		for (; i + 2 <= s->n; i += 2) {
 			size_t j = s->n - 2 - i;
