@@ -57,9 +57,12 @@ ls ./*.tmp.* 2>/dev/null && fail "temporary file left behind"
 
 # An interrupted run (SIGTERM, SIGINT) leaves the old output and no
 # temporary file; a finished one replaces it.
+NLONG=20000
 {
   echo "sample,structure,spectrum"
-  for i in $(seq 1 3000); do echo "LPC-0913-$i,CC(=O)c1ccccc1,spectra/ketone.jdx"; done
+  # Long enough to outlast 0.4 s on two jobs: a batch checks some 2,000
+  # samples a second per job (README, Speed).
+  seq 1 $NLONG | sed 's/.*/LPC-0913-&,CC(=O)c1ccccc1,spectra\/ketone.jdx/'
 } >long.csv
 for sig in TERM INT; do
   timeout -s "$sig" 0.4 "$P" batch --quiet --out kept.jsonl long.csv
@@ -69,6 +72,8 @@ for sig in TERM INT; do
   ls ./*.tmp.* 2>/dev/null && fail "SIG$sig: temporary file left behind"
 done
 timeout -s TERM 0.4 "$P" batch --quiet --jobs 2 --out fresh.jsonl long.csv
+rc=$?
+[ $rc -eq 124 ] || [ $rc -ge 128 ] || fail "2 jobs: the run ended by itself (status $rc); make long.csv longer"
 [ -e fresh.jsonl ] && fail "an interrupted run with 2 jobs left an output file"
 ls ./*.tmp.* 2>/dev/null && fail "2 jobs: temporary file left behind"
 "$P" batch --quiet --out kept.jsonl plate.csv
@@ -91,12 +96,12 @@ if command -v pgrep >/dev/null; then
   wait "$bp"
   rc=$?
   [ $rc -eq 2 ] || fail "killed worker: exit status $rc"
-  [ "$(wc -l <crash.jsonl)" -eq 3000 ] || fail "killed worker: not one line per sample"
+  [ "$(wc -l <crash.jsonl)" -eq $NLONG ] || fail "killed worker: not one line per sample"
   grep -q '"the worker process checking this sample was ended by signal 9"' crash.jsonl || fail "killed worker: no record naming the signal"
   /usr/bin/python3 -c '
 import json, sys
 got = [json.loads(l)["sample"] for l in open(sys.argv[1])]
-sys.exit(0 if got == ["LPC-0913-%d" % i for i in range(1, 3001)] else 1)' crash.jsonl || fail "killed worker: order lost"
+sys.exit(0 if got == ["LPC-0913-%d" % i for i in range(1, int(sys.argv[2]) + 1)] else 1)' crash.jsonl $NLONG || fail "killed worker: order lost"
 fi
 
 # Unknown options and missing values are usage errors.
