@@ -42,6 +42,8 @@ static const cli_opt opts[] = {
 	{"--max-bytes", "N", "refuse input files larger than N bytes (default 256 MiB)"},
 	{"--max-points", "N", "refuse spectra of more than N points (default 1,000,000)"},
 	{"--timing", NULL, "print the time spent per stage on stderr"},
+	{"--no-cache", NULL, "read and perceive every row's structures anew, even\n"
+	                     "when an earlier row had the same SMILES (same results)"},
 	{"--quiet", NULL, "no progress bar and no summary"},
 	{"--help", NULL, "show this help"},
 	{NULL, NULL, NULL}
@@ -629,7 +631,7 @@ int cmd_batch(int argc, char **argv)
 	const char **extra = NULL;
 	size_t nextra = 0, *sel = NULL, nsel = 0;
 	long jobs = 1, shard_k = 1, shard_n = 1;
-	int allow_outside = 0, want_timing = 0, quiet = 0, status = CLI_ERROR;
+	int allow_outside = 0, want_timing = 0, quiet = 0, no_cache = 0, status = CLI_ERROR;
 	irr_manifest_format fmt = IRR_MANIFEST_AUTO;
 	irr_manifest *m = NULL;
 	irr_tables *t = NULL;
@@ -725,6 +727,8 @@ int cmd_batch(int argc, char **argv)
 			extra[nextra++] = v;
 		} else if (!strcmp(a, "--timing")) {
 			want_timing = 1;
+		} else if (!strcmp(a, "--no-cache")) {
+			no_cache = 1;
 		} else if (!strcmp(a, "--quiet")) {
 			quiet = 1;
 		}
@@ -737,7 +741,7 @@ int cmd_batch(int argc, char **argv)
 	if (irr_manifest_read_file(&m, manifest_path, fmt, 0, &err) != IRR_OK ||
 	    irr_tables_load(&t, tables_dir, extra, nextra, &err) != IRR_OK ||
 	    irr_solvents_load(&solvents, NULL, &err) != IRR_OK ||
-	    irr_structure_cache_create(&structures, t, 0, &err) != IRR_OK) {
+	    (!no_cache && irr_structure_cache_create(&structures, t, 0, &err) != IRR_OK)) {
 		status = cli_fail(&err);
 		goto done;
 	}
