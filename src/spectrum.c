@@ -4,6 +4,7 @@
  * spectrum_read.c. */
 #include "irrecon/spectrum.h"
 #include "jcamp.h"
+#include "vlog.h"
 
 #include <locale.h>
 #include <math.h>
@@ -587,8 +588,14 @@ static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *er
 		/* T <= 0 has no absorbance; such points get the highest measured
 		 * one (at least the floor's) and are flagged saturated. */
 		ceiling = fmax(-log10(tminpos), -log10(T_FLOOR));
+#ifndef IRR_NO_SIMD
+		/* Several points at a time, the same bits as the loop below
+		 * (vlog.c); log() took about 5 % of a batch check. */
+		irr_vlog__neglog_scaled(y, n, LOG10_E, ceiling);
+#else
 		for (size_t i = 0; i < n; i++)
 			y[i] = y[i] > 0 ? -log(y[i]) * LOG10_E : ceiling;
+#endif
 	} else {
 		double amax = y[0];
 		for (size_t i = 1; i < n; i++)
