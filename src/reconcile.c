@@ -267,7 +267,9 @@ static int structure_get(irr_check *c, const char *smiles, const char *name,
 	int rc;
 	*m = NULL, *inv = NULL, *cached = NULL;
 	*perceive_failed = 0;
-	if (c->sc) {
+	/* Inventories depend on the tables: a cache made with others is not
+	 * asked (a request run with tables of its own). */
+	if (c->sc && irr_structure_cache__tables(c->sc) == c->t) {
 		if ((rc = irr_structure_cache__get(c->sc, smiles, name, cached, perceive_failed,
 		                                   err)) != IRR_OK)
 			return rc;

@@ -83,6 +83,11 @@ void irr_structure_cache_free(irr_structure_cache *sc)
 	free(sc);
 }
 
+const irr_tables *irr_structure_cache__tables(const irr_structure_cache *sc)
+{
+	return sc ? sc->t : NULL;
+}
+
 size_t irr_structure_cache_count(const irr_structure_cache *sc)
 {
 	return sc ? sc->count : 0;

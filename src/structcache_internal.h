@@ -26,6 +26,10 @@ int irr_structure_cache__get(irr_structure_cache *sc, const char *smiles,
                              const char *name, irr_sc_entry **out,
                              int *perceive_failed, irr_error *err);
 
+/* The tables the cache perceives with (a check with other tables must not
+ * take its structures from it). */
+const irr_tables *irr_structure_cache__tables(const irr_structure_cache *sc);
+
 /* Gives back one reference (NULL: no-op); the last frees the entry. */
 void irr_sc_entry__release(irr_sc_entry *e);
 

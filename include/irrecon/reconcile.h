@@ -130,8 +130,9 @@ int irr_check_add_other(irr_check *c, irr_other_kind kind, const char *what,
 
 /* Takes structures (the product's and every other substance's) from `sc`
  * (borrowed: keep it alive while the check and its clones live; NULL: read
- * and perceive each one here), so that a run meeting the same SMILES many times parses it
- * once. The result is the same either way. Call before
+ * and perceive each one here), so that a run meeting the same SMILES many
+ * times parses it once. The result is the same either way; a cache made
+ * with other tables than the check's is not used. Call before
  * irr_check_set_structure and irr_check_add_other. */
 void irr_check_use_structure_cache(irr_check *c, irr_structure_cache *sc);
 

@@ -129,12 +129,33 @@ static void full_cache_starts_afresh_and_borrowers_keep_theirs(void **state)
 	irr_check_free(keep);
 }
 
+/* A cache perceives with its own tables; a check with others (loaded
+ * separately, perhaps with an extra table) must not take its structures. */
+static void other_tables_do_not_use_it(void **state)
+{
+	irr_structure_cache *sc = NULL;
+	irr_tables *other = NULL;
+	irr_check *c = NULL;
+	irr_error err;
+	(void)state;
+	assert_int_equal(irr_tables_load(&other, NULL, NULL, 0, &err), IRR_OK);
+	assert_int_equal(irr_structure_cache_create(&sc, tables, 0, &err), IRR_OK);
+	assert_int_equal(irr_check_create(&c, other, &err), IRR_OK);
+	irr_check_use_structure_cache(c, sc);
+	assert_int_equal(irr_check_set_structure(c, PRODUCT, &err), IRR_OK);
+	assert_int_equal(irr_structure_cache_count(sc), 0);
+	irr_check_free(c);
+	irr_structure_cache_free(sc);
+	irr_tables_free(other);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(same_result_with_and_without),
 		cmocka_unit_test(failures_are_not_kept),
 		cmocka_unit_test(full_cache_starts_afresh_and_borrowers_keep_theirs),
+		cmocka_unit_test(other_tables_do_not_use_it),
 	};
 	return cmocka_run_group_tests(tests, setup, teardown);
 }
