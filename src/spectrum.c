@@ -19,6 +19,10 @@
 #include <emmintrin.h>
 #define IRR_SSE2 1
 #endif
+#if defined(__x86_64__) && defined(__GNUC__) && !defined(IRR_NO_SIMD)
+#include <immintrin.h>
+#define SP_AVX512 1
+#endif
 
 /* Transmittance (fraction) at or below which the detector is taken to see
  * no light: A >= 3. Photometric accuracy of FT-IR and dispersive
@@ -420,15 +424,100 @@ static size_t mark_flat_extreme(const double *y, size_t n, double e, unsigned ch
 	return count;
 }
 
+#ifdef SP_AVX512
+static int have_avx512(void)
+{
+	return __builtin_cpu_supports("avx512f") && __builtin_cpu_supports("popcnt");
+}
+
+/* highest() 32 values a time from y[1], in four independent chains (one
+ * chain waits on max's latency). Returns the first index not done; *hi is
+ * the highest so far. */
+__attribute__((target("avx512f"))) static size_t highest_avx512(const double *y, size_t n,
+                                                                double *hi)
+{
+	__m512d h0 = _mm512_set1_pd(y[0]), h1 = h0, h2 = h0, h3 = h0;
+	double t[8];
+	size_t i = 1;
+	/* max(v, h) keeps h when v is NaN, as the plain scan skips it. */
+	for (; i + 32 <= n; i += 32) {
+		h0 = _mm512_max_pd(_mm512_loadu_pd(y + i), h0);
+		h1 = _mm512_max_pd(_mm512_loadu_pd(y + i + 8), h1);
+		h2 = _mm512_max_pd(_mm512_loadu_pd(y + i + 16), h2);
+		h3 = _mm512_max_pd(_mm512_loadu_pd(y + i + 24), h3);
+	}
+	for (; i + 8 <= n; i += 8)
+		h0 = _mm512_max_pd(_mm512_loadu_pd(y + i), h0);
+	h0 = _mm512_max_pd(_mm512_max_pd(h1, h0), _mm512_max_pd(h3, h2));
+	_mm512_storeu_pd(t, h0);
+	*hi = y[0];
+	for (int k = 0; k < 8; k++)
+		*hi = t[k] > *hi ? t[k] : *hi;
+	return i;
+}
+
+/* The transmittance scan of normalise_arrays eight points at a time from
+ * y[0]: lowest value, lowest positive value, saturation flags (one byte
+ * each) and their count. Returns the first index not done. */
+__attribute__((target("avx512f,popcnt"))) static size_t
+tscan_avx512(const double *y, size_t n, unsigned char *sat, double *tmin, double *tminpos,
+             size_t *nsat)
+{
+	__m512d lo = _mm512_set1_pd(*tmin), lp = _mm512_set1_pd(*tminpos);
+	const __m512d zero = _mm512_setzero_pd(), fl = _mm512_set1_pd(T_FLOOR);
+	const __m512i one = _mm512_set1_epi64(1);
+	double t[8];
+	size_t i = 0, count = 0;
+	for (; i + 8 <= n; i += 8) {
+		__m512d v = _mm512_loadu_pd(y + i);
+		__mmask8 pos = _mm512_cmp_pd_mask(v, zero, _CMP_GT_OQ);
+		__mmask8 f = _mm512_cmp_pd_mask(v, fl, _CMP_LE_OQ);
+		lo = _mm512_min_pd(v, lo);
+		lp = _mm512_mask_min_pd(lp, pos, v, lp);
+		/* Flags as bytes 0/1: the mask's lanes narrowed to 8 bits. */
+		_mm_storel_epi64((__m128i *)(void *)(sat + i),
+		                 _mm512_cvtepi64_epi8(_mm512_maskz_mov_epi64(f, one)));
+		count += (size_t)__builtin_popcount(f);
+	}
+	_mm512_storeu_pd(t, lo);
+	for (int k = 0; k < 8; k++)
+		*tmin = t[k] < *tmin ? t[k] : *tmin;
+	_mm512_storeu_pd(t, lp);
+	for (int k = 0; k < 8; k++)
+		*tminpos = t[k] < *tminpos ? t[k] : *tminpos;
+	*nsat += count;
+	return i;
+}
+
+/* dst[i] = src[n-1-i] for x and y, eight at a time; returns the first i
+ * not done. */
+__attribute__((target("avx512f"))) static size_t reverse_avx512(const double *sx, const double *sy,
+                                                                double *x, double *y, size_t n)
+{
+	const __m512i rev = _mm512_set_epi64(0, 1, 2, 3, 4, 5, 6, 7);
+	size_t i = 0;
+	for (; i + 8 <= n; i += 8) {
+		size_t j = n - 8 - i;
+		_mm512_storeu_pd(x + i, _mm512_permutexvar_pd(rev, _mm512_loadu_pd(sx + j)));
+		_mm512_storeu_pd(y + i, _mm512_permutexvar_pd(rev, _mm512_loadu_pd(sy + j)));
+	}
+	return i;
+}
+#endif
+
 /* The highest of y[0..n-1] (n >= 1; a NaN counts only as y[0], as in a
- * plain scan), two at a time where SSE2 is there: the same value in any
- * order. */
+ * plain scan), several at a time where SSE2 or AVX-512 is there: the same
+ * value in any order. */
 static double highest(const double *y, size_t n)
 {
 	double hi = y[0];
 	size_t i = 1;
+#ifdef SP_AVX512
+	if (n >= 33 && have_avx512())
+		i = highest_avx512(y, n, &hi);
+#endif
 #ifdef IRR_SSE2
-	if (n >= 3) {
+	if (n >= i + 2) {
 		__m128d h = _mm_set1_pd(hi);
 		double t[2];
 		for (; i + 2 <= n; i += 2)
@@ -539,6 +628,10 @@ static int normalise_arrays(irr_spectrum *s, double *x, double *y, irr_error *er
 		 * floor), or the minimum is clipped flat. */
 		double tmin = y[0], tminpos = HUGE_VAL, ceiling;
 		size_t i0 = 0;
+#ifdef SP_AVX512
+		if (have_avx512())
+			i0 = tscan_avx512(y, n, sat, &tmin, &tminpos, &nsat_pts);
+#endif
 #ifdef IRR_SSE2
 		/* Two at a time: the lowest values are the same in any order. */
 		{
@@ -661,6 +754,10 @@ int irr_spectrum_normalise(irr_spectrum *s, irr_error *err)
 	 * high to low wavenumber); micrometres are reversed after conversion. */
 	if (!s->x_micrometers && s->x[0] > s->x[s->n - 1]) {
 		size_t i = 0;
+#ifdef SP_AVX512
+		if (have_avx512())
+			i = reverse_avx512(s->x, s->y, x, y, s->n);
+#endif
 #ifdef IRR_SSE2
 		/* Two at a time, their order swapped. */
 		for (; i + 2 <= s->n; i += 2) {
