@@ -7,6 +7,7 @@
  * records against the data. */
 #include "irrecon/spectrum.h"
 #include "jcamp.h"
+#include "spectrum_vec.h"
 
 #include <math.h>
 #include <stdint.h>
@@ -1427,19 +1428,11 @@ int irr_jcamp__read(irr_spectrum **out, const char *data, size_t len,
 			}
 			{
 				/* An evenly spaced axis is monotonic by construction
-				 * and positive when both ends are; a sum of v * 0 is
-				 * NaN exactly when some v is not finite. The index
-				 * runs as a double too (exact below 2^53). The raw
-				 * extremes for the header checks on the way. */
-				double z = 0.0, di = 0.0, raw0 = s->y[0], rmin = raw0, rmax = raw0;
-				for (size_t i = 0; i < n; i++, di += 1.0) {
-					double v = s->y[i];
-					rmin = v < rmin ? v : rmin;
-					rmax = v > rmax ? v : rmax;
-					s->x[i] = x0 + di * dx;
-					s->y[i] = v * yf;
-					z += s->y[i] * 0.0;
-				}
+				 * and positive when both ends are; z is NaN exactly
+				 * when some scaled Y is not finite. The raw extremes
+				 * for the header checks on the way. */
+				double z, raw0 = s->y[0], rmin, rmax;
+				irr_spectrum__scale_points(s->x, s->y, n, x0, dx, yf, &rmin, &rmax, &z);
 				if (dx_from_lastx)
 					s->x[n - 1] = h.lastx.v;
 				if ((rc = check_y_headers(s, &h, raw0, rmin, rmax, yf, name, err)) < 0)

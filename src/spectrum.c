@@ -4,6 +4,7 @@
  * spectrum_read.c. */
 #include "irrecon/spectrum.h"
 #include "jcamp.h"
+#include "spectrum_vec.h"
 #include "vlog.h"
 
 #include <locale.h>
@@ -504,6 +505,85 @@ __attribute__((target("avx512f"))) static size_t reverse_avx512(const double *sx
 	return i;
 }
 #endif
+
+#ifdef SP_AVX512
+/* irr_spectrum__scale_points eight points at a time from 0; returns the
+ * first index not done, with *rmin, *rmax and *z as the plain loop leaves
+ * them there. min/max keep their second operand on equality and NaN, as
+ * v < rmin ? v : rmin does; the one value two orders could tell apart is
+ * a zero's sign, so a zero extreme is the first zero met, as in the loop.
+ * z is 0 or NaN in any order. */
+__attribute__((target("avx512f"))) static size_t scale_avx512(double *x, double *y, size_t n,
+                                                              double x0, double dx, double yf,
+                                                              double *rmin, double *rmax,
+                                                              double *z)
+{
+	__m512d lo = _mm512_set1_pd(y[0]), hi = lo, zs = _mm512_setzero_pd();
+	__m512d di = _mm512_set_pd(7, 6, 5, 4, 3, 2, 1, 0);
+	const __m512d vx0 = _mm512_set1_pd(x0), vdx = _mm512_set1_pd(dx), vyf = _mm512_set1_pd(yf);
+	const __m512d zero = _mm512_setzero_pd(), eight = _mm512_set1_pd(8.0);
+	double t[8], first_zero = 0.0, r;
+	int have_zero = 0;
+	size_t i = 0;
+	for (; i + 8 <= n; i += 8) {
+		__m512d v = _mm512_loadu_pd(y + i), w;
+		if (!have_zero) {
+			__mmask8 zm = _mm512_cmp_pd_mask(v, zero, _CMP_EQ_OQ);
+			if (zm) {
+				first_zero = y[i + (size_t)__builtin_ctz(zm)];
+				have_zero = 1;
+			}
+		}
+		lo = _mm512_min_pd(v, lo);
+		hi = _mm512_max_pd(v, hi);
+		_mm512_storeu_pd(x + i, _mm512_add_pd(vx0, _mm512_mul_pd(di, vdx)));
+		w = _mm512_mul_pd(v, vyf);
+		_mm512_storeu_pd(y + i, w);
+		zs = _mm512_add_pd(zs, _mm512_mul_pd(w, zero));
+		di = _mm512_add_pd(di, eight);
+	}
+	_mm512_storeu_pd(t, lo);
+	r = *rmin;
+	for (int k = 0; k < 8; k++)
+		r = t[k] < r ? t[k] : r;
+	*rmin = r == 0.0 && have_zero ? first_zero : r;
+	_mm512_storeu_pd(t, hi);
+	r = *rmax;
+	for (int k = 0; k < 8; k++)
+		r = t[k] > r ? t[k] : r;
+	*rmax = r == 0.0 && have_zero ? first_zero : r;
+	_mm512_storeu_pd(t, zs);
+	for (int k = 0; k < 8; k++)
+		*z += t[k];
+	return i;
+}
+#endif
+
+void irr_spectrum__scale_points(double *x, double *y, size_t n, double x0, double dx, double yf,
+                                double *rmin, double *rmax, double *z)
+{
+	/* The index runs as a double too (exact below 2^53); a sum of
+	 * v * 0 is NaN exactly when some v is not finite. */
+	double di = 0.0, lo = y[0], hi = y[0], zs = 0.0;
+	size_t i = 0;
+#ifdef SP_AVX512
+	if (n >= 16 && __builtin_cpu_supports("avx512f")) {
+		i = scale_avx512(x, y, n, x0, dx, yf, &lo, &hi, &zs);
+		di = (double)i;
+	}
+#endif
+	for (; i < n; i++, di += 1.0) {
+		double v = y[i];
+		lo = v < lo ? v : lo;
+		hi = v > hi ? v : hi;
+		x[i] = x0 + di * dx;
+		y[i] = v * yf;
+		zs += y[i] * 0.0;
+	}
+	*rmin = lo;
+	*rmax = hi;
+	*z = zs;
+}
 
 /* The highest of y[0..n-1] (n >= 1; a NaN counts only as y[0], as in a
  * plain scan), several at a time where SSE2 or AVX-512 is there: the same
