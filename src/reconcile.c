@@ -119,7 +119,8 @@ typedef struct other_in {
 	irr_molecule *mol;           /* owned, or the cached entry's */
 	irr_inventory *inv;
 	irr_sc_entry *cached;        /* the structure cache's entry, or NULL */
-	irr_prediction *pred;        /* made in run */
+	irr_prediction *pred;        /* made in run, or the cached entry's */
+	int pred_borrowed;
 	other_band *bands;
 	size_t nbands;
 	irr_marker *markers;
@@ -159,6 +160,7 @@ struct irr_check {
 	size_t ncautions, capcautions;
 	irr_verdict verdict;
 	double score;
+	int pred_borrowed;           /* pred is the cached entry's */
 	double product_ref;          /* median height of the product's found medium/strong bands */
 	irr_check_timing timing;
 };
@@ -205,8 +207,10 @@ static void lib_release(shared_lib *sl)
 
 static void clear_result(irr_check *c)
 {
-	irr_prediction_free(c->pred);
+	if (!c->pred_borrowed)
+		irr_prediction_free(c->pred);
 	c->pred = NULL;
+	c->pred_borrowed = 0;
 	free(c->exp);
 	c->exp = NULL;
 	free(c->eclass);
@@ -231,8 +235,10 @@ static void clear_result(irr_check *c)
 	c->ncautions = c->capcautions = 0;
 	for (size_t i = 0; i < c->nothers; i++) {
 		other_in *o = &c->others[i];
-		irr_prediction_free(o->pred);
+		if (!o->pred_borrowed)
+			irr_prediction_free(o->pred);
 		o->pred = NULL;
+		o->pred_borrowed = 0;
 		free(o->bands);
 		o->bands = NULL;
 		o->nbands = 0;
@@ -858,11 +864,35 @@ static size_t find_candidates(const irr_tables *t, const irr_peak *p, const char
 /* Bands of another substance: the same predictor plus, for library
  * entries, the tabulated strong bands (which come first: they are measured
  * positions of that very compound). */
+/* The bands of a structure: the cached entry's (predicted by the first
+ * check that needed them) when the options match, else predicted here.
+ * *borrowed says which. */
+static int predict_for(irr_check *c, const irr_inventory *inv, irr_sc_entry *cached,
+                       const irr_predict_options *po, irr_prediction **out,
+                       int *borrowed, irr_error *err)
+{
+	int rc;
+	*borrowed = 0;
+	if (cached) {
+		if (!cached->pred) {
+			if ((rc = irr_predict(&cached->pred, inv, c->t, po, err)) != IRR_OK)
+				return rc;
+			cached->pred_opt = *po;
+		}
+		if (cached->pred_opt.phase == po->phase && cached->pred_opt.sampling == po->sampling) {
+			*out = cached->pred;
+			*borrowed = 1;
+			return IRR_OK;
+		}
+	}
+	return irr_predict(out, inv, c->t, po, err);
+}
+
 static int other_bands(irr_check *c, other_in *o, const irr_predict_options *po,
                        irr_error *err)
 {
 	size_t np, nl, n = 0;
-	int rc = irr_predict(&o->pred, o->inv, c->t, po, err);
+	int rc = predict_for(c, o->inv, o->cached, po, &o->pred, &o->pred_borrowed, err);
 	if (rc)
 		return rc;
 	np = irr_prediction_count(o->pred);
@@ -1057,7 +1087,7 @@ int irr_check_run(irr_check *c, irr_error *err)
 	irr_predict_options_init(&po);
 	po.phase = c->opt.phase;
 	po.sampling = c->opt.sampling;
-	if ((rc = irr_predict(&c->pred, c->inv, c->t, &po, err)))
+	if ((rc = predict_for(c, c->inv, c->cached, &po, &c->pred, &c->pred_borrowed, err)))
 		goto done;
 	t1 = now_seconds();
 	c->timing.predict = t1 - t0;

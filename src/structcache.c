@@ -59,6 +59,7 @@ void irr_sc_entry__release(irr_sc_entry *e)
 {
 	if (!e || --e->refs > 0)
 		return;
+	irr_prediction_free(e->pred);
 	irr_inventory_free(e->inv);
 	irr_molecule_free(e->mol);
 	free(e->smiles);

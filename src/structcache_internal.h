@@ -4,6 +4,7 @@
 #define IRRECON_STRUCTCACHE_INTERNAL_H
 
 #include "irrecon/perceive.h"
+#include "irrecon/predict.h"
 #include "irrecon/structcache.h"
 #include "irrecon/structure.h"
 
@@ -13,6 +14,11 @@ typedef struct irr_sc_entry {
 	char *smiles;
 	irr_molecule *mol;
 	irr_inventory *inv;
+	/* The bands predicted for it, made by the first check that needed
+	 * them, with the options they were made for (a check with other
+	 * options predicts its own). NULL until then. */
+	irr_prediction *pred;
+	irr_predict_options pred_opt;
 	int refs;
 } irr_sc_entry;
 

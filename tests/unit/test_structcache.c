@@ -38,14 +38,18 @@ static int teardown(void **state)
 	return 0;
 }
 
-/* The JSON of one check of the demo sample (caller frees). */
-static char *check_json(irr_structure_cache *sc)
+/* The JSON of one check of the demo sample (caller frees), in a phase. */
+static char *check_json_as(irr_structure_cache *sc, irr_phase phase)
 {
 	irr_check *c = NULL;
 	irr_spectrum *s = NULL;
+	irr_check_options o;
 	irr_error err;
 	char *json = NULL;
 	assert_int_equal(irr_check_create(&c, tables, &err), IRR_OK);
+	irr_check_options_init(&o);
+	o.phase = phase;
+	irr_check_set_options(c, &o);
 	irr_check_use_structure_cache(c, sc);
 	assert_int_equal(irr_check_set_structure(c, PRODUCT, &err), IRR_OK);
 	assert_int_equal(irr_check_add_other(c, IRR_OTHER_STARTING_MATERIAL, START, &err), IRR_OK);
@@ -56,6 +60,11 @@ static char *check_json(irr_structure_cache *sc)
 	assert_int_equal(irr_report_json(&json, c), IRR_OK);
 	irr_check_free(c);
 	return json;
+}
+
+static char *check_json(irr_structure_cache *sc)
+{
+	return check_json_as(sc, IRR_PHASE_CONDENSED);
 }
 
 static void same_result_with_and_without(void **state)
@@ -78,6 +87,17 @@ static void same_result_with_and_without(void **state)
 	free(plain);
 	free(first);
 	free(second);
+	/* The cached entries hold bands predicted for the condensed phase; a
+	 * check in the gas phase must predict its own: the starting alcohol's
+	 * O-H marker is then the free stretch at 3590-3650 cm-1, not the
+	 * H-bonded one at 3200-3550 (group-tables/oxygen.json, after
+	 * Silverstein, Webster & Kiemle, 7th ed., ch. 2). */
+	plain = check_json_as(NULL, IRR_PHASE_GAS);
+	first = check_json_as(sc, IRR_PHASE_GAS);
+	assert_non_null(strstr(plain, "O-H stretch (free)"));
+	assert_string_equal(plain, first);
+	free(plain);
+	free(first);
 	irr_structure_cache_free(sc);
 }
 
