@@ -337,26 +337,29 @@ static double median_inplace(double *a, size_t n)
 
 #ifdef PK_AVX512
 /* median_near's pass eight values at a time from i (AVX-512F compress
- * stores, order kept): the values in [lo, hi] are appended to out, those
- * below lo counted; likewise for g when given. Returns the first index not
- * done. */
+ * stores, order kept): the values in [lo, mid) are appended to out, those
+ * in [mid, hi] to out2, those below lo counted; likewise for g when given.
+ * Returns the first index not done. */
 __attribute__((target("avx512f,popcnt")))
 static size_t bracket_avx512(const double *src, size_t n, size_t i, int absval, double lo,
-                             double hi, double *out, size_t *pm, size_t *pbelow, size_t *pabove,
-                             kth_gather *g)
+                             double mid, double hi, double *out, size_t *pm, double *out2,
+                             size_t *pm2, size_t *pbelow, size_t *pabove, kth_gather *g)
 {
-	__m512d vlo = _mm512_set1_pd(lo), vhi = _mm512_set1_pd(hi);
+	__m512d vlo = _mm512_set1_pd(lo), vhi = _mm512_set1_pd(hi), vmid = _mm512_set1_pd(mid);
 	__m512d glo = _mm512_set1_pd(g ? g->lo : 0.0), ghi = _mm512_set1_pd(g ? g->hi : 0.0);
 	__m512i sign = _mm512_set1_epi64(absval ? 0x7fffffffffffffffLL : -1LL);
-	size_t m = *pm, below = *pbelow, above = *pabove;
+	size_t m = *pm, m2 = *pm2, below = *pbelow, above = *pabove;
 	for (; i + 8 <= n; i += 8) {
 		__m512d v = _mm512_castsi512_pd(_mm512_and_si512(
 		                _mm512_castpd_si512(_mm512_loadu_pd(src + i)), sign));
 		__mmask8 in = _mm512_cmp_pd_mask(v, vlo, _CMP_GE_OQ) & _mm512_cmp_pd_mask(v, vhi, _CMP_LE_OQ);
+		__mmask8 up = in & _mm512_cmp_pd_mask(v, vmid, _CMP_GE_OQ);
 		below += (size_t)__builtin_popcount(_mm512_cmp_pd_mask(v, vlo, _CMP_LT_OQ));
 		above += (size_t)__builtin_popcount(_mm512_cmp_pd_mask(v, vhi, _CMP_GT_OQ));
-		_mm512_mask_compressstoreu_pd(out + m, in, v);
-		m += (size_t)__builtin_popcount(in);
+		_mm512_mask_compressstoreu_pd(out + m, in & (__mmask8)~up, v);
+		_mm512_mask_compressstoreu_pd(out2 + m2, up, v);
+		m += (size_t)__builtin_popcount(in & (__mmask8)~up);
+		m2 += (size_t)__builtin_popcount(up);
 		if (g) {
 			__mmask8 gin = _mm512_cmp_pd_mask(v, glo, _CMP_GE_OQ) &
 			               _mm512_cmp_pd_mask(v, ghi, _CMP_LE_OQ);
@@ -366,6 +369,7 @@ static size_t bracket_avx512(const double *src, size_t n, size_t i, int absval, 
 		}
 	}
 	*pm = m;
+	*pm2 = m2;
 	*pbelow = below;
 	*pabove = above;
 	return i;
@@ -575,19 +579,25 @@ static double median_near(const double *src, size_t n, int absval, double near,
 {
 	if (n == 0)
 		return 0.0;
-	size_t k = n / 2, below = 0, above = 0, m = 0, i = 0;
+	size_t k = n / 2, below = 0, above = 0, m = 0, m2 = 0, i = 0;
 	double lo = near > 0.0 ? near / 1.5 : HUGE_VAL, hi = near > 0.0 ? near * 1.5 : -HUGE_VAL;
+	/* What lies inside is split at the guess itself, [lo, mid) to
+	 * scratch and [mid, hi] to upper: the median is in one half, which
+	 * is searched alone (half as many values, and a smaller sorting
+	 * network). NaN as mid (a long array) puts everything in scratch. */
+	double upper[NOISE_BLOCK], mid = n <= NOISE_BLOCK ? near : NAN;
 	if (!g && !(near > 0.0))
 		goto all;
 #ifdef PK_AVX512
 	if (__builtin_cpu_supports("avx512f") && __builtin_cpu_supports("popcnt"))
-		i = bracket_avx512(src, n, i, absval, lo, hi, scratch, &m, &below, &above, g);
+		i = bracket_avx512(src, n, i, absval, lo, mid, hi, scratch, &m, upper, &m2, &below,
+		                   &above, g);
 #endif
 #ifdef IRR_SSE2
 	{
 		/* Two values at a time, kept in their order; the counts add up
 		 * the comparisons' all-ones lanes (-1 each). */
-		__m128d vlo = _mm_set1_pd(lo), vhi = _mm_set1_pd(hi);
+		__m128d vlo = _mm_set1_pd(lo), vhi = _mm_set1_pd(hi), vmid = _mm_set1_pd(mid);
 		__m128d glo = _mm_set1_pd(g ? g->lo : 0.0), ghi = _mm_set1_pd(g ? g->hi : 0.0);
 		__m128d sign = absval ? _mm_set1_pd(-0.0) : _mm_setzero_pd();
 		__m128i nb = _mm_setzero_si128(), ngb = nb, na = nb;
@@ -597,7 +607,9 @@ static double median_near(const double *src, size_t n, int absval, double near,
 			size_t gm = g->m;
 			for (; i + 2 <= n; i += 2) {
 				__m128d v = _mm_andnot_pd(sign, _mm_loadu_pd(src + i));
-				int in = _mm_movemask_pd(_mm_and_pd(_mm_cmpge_pd(v, vlo), _mm_cmple_pd(v, vhi)));
+				__m128d vin = _mm_and_pd(_mm_cmpge_pd(v, vlo), _mm_cmple_pd(v, vhi));
+				int up = _mm_movemask_pd(_mm_and_pd(vin, _mm_cmpge_pd(v, vmid)));
+				int in = _mm_movemask_pd(vin) & ~up;
 				int gin = _mm_movemask_pd(_mm_and_pd(_mm_cmpge_pd(v, glo), _mm_cmple_pd(v, ghi)));
 				nb = _mm_sub_epi64(nb, _mm_castpd_si128(_mm_cmplt_pd(v, vlo)));
 				na = _mm_sub_epi64(na, _mm_castpd_si128(_mm_cmpgt_pd(v, vhi)));
@@ -606,6 +618,10 @@ static double median_near(const double *src, size_t n, int absval, double near,
 				m += (size_t)(in & 1);
 				_mm_storeh_pd(scratch + m, v);
 				m += (size_t)(in >> 1);
+				_mm_storel_pd(upper + m2, v);
+				m2 += (size_t)(up & 1);
+				_mm_storeh_pd(upper + m2, v);
+				m2 += (size_t)(up >> 1);
 				_mm_storel_pd(gb + gm, v);
 				gm += (size_t)(gin & 1);
 				_mm_storeh_pd(gb + gm, v);
@@ -617,13 +633,19 @@ static double median_near(const double *src, size_t n, int absval, double near,
 		} else {
 			for (; i + 2 <= n; i += 2) {
 				__m128d v = _mm_andnot_pd(sign, _mm_loadu_pd(src + i));
-				int in = _mm_movemask_pd(_mm_and_pd(_mm_cmpge_pd(v, vlo), _mm_cmple_pd(v, vhi)));
+				__m128d vin = _mm_and_pd(_mm_cmpge_pd(v, vlo), _mm_cmple_pd(v, vhi));
+				int up = _mm_movemask_pd(_mm_and_pd(vin, _mm_cmpge_pd(v, vmid)));
+				int in = _mm_movemask_pd(vin) & ~up;
 				nb = _mm_sub_epi64(nb, _mm_castpd_si128(_mm_cmplt_pd(v, vlo)));
 				na = _mm_sub_epi64(na, _mm_castpd_si128(_mm_cmpgt_pd(v, vhi)));
 				_mm_storel_pd(scratch + m, v);
 				m += (size_t)(in & 1);
 				_mm_storeh_pd(scratch + m, v);
 				m += (size_t)(in >> 1);
+				_mm_storel_pd(upper + m2, v);
+				m2 += (size_t)(up & 1);
+				_mm_storeh_pd(upper + m2, v);
+				m2 += (size_t)(up >> 1);
 			}
 		}
 		_mm_storeu_si128((__m128i *)t, nb);
@@ -634,29 +656,39 @@ static double median_near(const double *src, size_t n, int absval, double near,
 #endif
 	for (; i < n; i++) {
 		double v = absval ? fabs(src[i]) : src[i];
+		int in = (v >= lo) & (v <= hi), up = in & (v >= mid);
 		scratch[m] = v;
+		upper[m2] = v;
 		below += v < lo;
 		above += v > hi;
-		m += (v >= lo) & (v <= hi);
+		m += (size_t)(in & !up);
+		m2 += (size_t)up;
 		if (g) {
 			g->buf[g->m] = v;
 			g->below += v < g->lo;
 			g->m += (v >= g->lo) & (v <= g->hi);
 		}
 	}
-	if (near > 0.0 && below <= k && k < below + m) {
+	if (near > 0.0 && below <= k && k < below + m + m2) {
+		double *a = scratch;
+		size_t r = k - below;
+		if (r >= m) {
+			a = upper;
+			r -= m;
+			m = m2;
+		}
 #ifdef PK_AVX512
 		/* What lies inside is no NaN, and |v| or a second difference's
 		 * absolute value is never -0. */
 		if (m <= 64 && __builtin_cpu_supports("avx512f"))
-			return select_net_avx512(scratch, m, k - below);
+			return select_net_avx512(a, m, r);
 #endif
-		return select_small(scratch, m, k - below);
+		return select_small(a, m, r);
 	}
-	if (near > 0.0 && below + m + above == n) {
+	if (near > 0.0 && below + m + m2 + above == n) {
 		/* Missed, and no NaN (the three counts add up): the median is
 		 * the right order statistic of the side it fell on. */
-		size_t j = 0, kk = k < below ? k : k - below - m;
+		size_t j = 0, kk = k < below ? k : k - below - m - m2;
 		for (i = 0; i < n; i++) {
 			double v = absval ? fabs(src[i]) : src[i];
 			scratch[j] = v;
