@@ -1077,9 +1077,155 @@ static size_t gather_avx512(const double *c, size_t n, size_t i, double floor, d
  * otherwise. lb and rb are written only where they are defined that way:
  * at the points not skipped, which include every wanted maximum. tv, ti,
  * sval, smin and sidx are scratch of n. The interior maxima at or above floor,
- * ascending, go to mx; their count is returned. */
-static size_t prominence_bases(const double *c, size_t n, double floor, double *lb,
-                               double *rb, double *tv, size_t *ti, double *sval,
+ * ascending, go to mx; their count is returned.
+ *
+ * With bthr (per NOISE_BLOCK block of points: the caller drops every
+ * maximum whose prominence, computed as c[i] - max(lb, rb), is below its
+ * block's bthr), mx lists only the maxima that can reach it, and the
+ * stack pass is spared most of a stretch of noise. The points that
+ * matter are cut into chunks; in a chunk whose values span less than the
+ * least threshold of its blocks (hi - lo < t, rounded), a maximum that
+ * has a point at or above it later in the chunk has its right base, and
+ * so its base, at or above lo: its prominence is below t (rounding is
+ * monotone), and it is dropped. What other points need of the chunk is
+ * kept: the strict prefix maxima (the first point at or above a point
+ * before the chunk is one), the strict suffix maxima (the nearest point
+ * strictly above a point after it is one), and between two kept points
+ * the lowest of the ones left out, as one entry. The kept points' own
+ * higher ground is kept too, and every interval between a point and its
+ * higher ground holds whole runs of left-out points, so the bases of
+ * every maximum listed are exactly those of the full pass (the idea of
+ * discarding features below a persistence threshold: H. Edelsbrunner,
+ * D. Letscher, A. Zomorodian, Discrete Comput. Geom. 28 (2002) 511). */
+#define PB_CHUNK 64
+/* prominence_bases' chunk tv[s0..e-1] (e - s0 <= PB_CHUNK), see there:
+ * when its values span less than t, the points kept (strict prefix or
+ * suffix maxima) and the lowest of each run left out between them go to
+ * tv, ti from *po on, fb[i] says for each point whether it was kept, and
+ * 1 is returned; else 0 and nothing is changed. The run's entry takes the
+ * index of its last point (it is written to, never read). No NaN. */
+static int chunk_plain(double *tv, size_t *ti, size_t s0, size_t e, double t, size_t *po,
+                       unsigned char *fb)
+{
+	unsigned char kf[PB_CHUNK];
+	double lo = tv[s0], pm = -HUGE_VAL, pend = HUGE_VAL;
+	size_t o = *po, last = 0;
+	int has = 0;
+	for (size_t r = s0; r < e; r++) {
+		double v = tv[r];
+		kf[r - s0] = v > pm;
+		pm = v > pm ? v : pm;
+		lo = v < lo ? v : lo;
+	}
+	if (!(pm - lo < t))
+		return 0;
+	pm = -HUGE_VAL;
+	for (size_t r = e; r-- > s0;) {
+		double v = tv[r];
+		kf[r - s0] |= v > pm;
+		pm = v > pm ? v : pm;
+		fb[ti[r]] = kf[r - s0];
+	}
+	/* Without branches: which points are kept is noise. */
+	for (size_t r = s0; r < e; r++) {
+		double v = tv[r];
+		size_t ix = ti[r];
+		int k = kf[r - s0];
+		tv[o] = pend;
+		ti[o] = last;
+		o += (size_t)(k & has);
+		tv[o] = v;
+		ti[o] = ix;
+		o += (size_t)k;
+		last = ix;
+		pend = k ? HUGE_VAL : v < pend ? v : pend;
+		has = !k;
+	}
+	tv[o] = pend;
+	ti[o] = last;
+	o += (size_t)has;
+	*po = o;
+	return 1;
+}
+
+#ifdef PK_AVX512
+/* Lanes moved up (d > 0: lane i takes lane i - d) or down (d < 0) by |d|,
+ * the lanes left empty taken from f. */
+#define PB_UP(v, f, d) _mm512_castsi512_pd(_mm512_alignr_epi64(_mm512_castpd_si512(v), \
+                                           _mm512_castpd_si512(f), 8 - (d)))
+#define PB_DOWN(v, f, d) _mm512_castsi512_pd(_mm512_alignr_epi64(_mm512_castpd_si512(f), \
+                                             _mm512_castpd_si512(v), (d)))
+/* chunk_plain eight points at a time (AVX-512F): the running maxima both
+ * ways and the lowest value of each run (a segmented scan: W. D. Hillis,
+ * G. L. Steele, Commun. ACM 29 (1986) 1170) by shifts within a register,
+ * carried from register to register; the same points kept. */
+__attribute__((target("avx512f,popcnt")))
+static int chunk_avx512(double *tv, size_t *ti, size_t s0, size_t e, double t, size_t *po,
+                        unsigned char *fb)
+{
+	size_t len = e - s0, nv = (len + 7) / 8, o = *po;
+	__m512d ninf = _mm512_set1_pd(-HUGE_VAL), pinf = _mm512_set1_pd(HUGE_VAL);
+	__m512d v[PB_CHUNK / 8], vlo = pinf, vhi = ninf, carry = ninf;
+	__m512i last = _mm512_set1_epi64(7), first = _mm512_setzero_si512();
+	unsigned long long pre = 0, suf = 0, keep, ends, valid;
+	__mmask8 ld[PB_CHUNK / 8];
+	for (size_t k = 0; k < nv; k++) {
+		size_t rem = len - 8 * k;
+		ld[k] = rem >= 8 ? (__mmask8)0xff : (__mmask8)((1u << rem) - 1);
+		v[k] = _mm512_mask_loadu_pd(ninf, ld[k], tv + s0 + 8 * k);
+		vlo = _mm512_mask_min_pd(vlo, ld[k], vlo, v[k]);
+		vhi = _mm512_max_pd(vhi, v[k]);
+		__m512d p = v[k];
+		p = _mm512_max_pd(p, PB_UP(p, ninf, 1));
+		p = _mm512_max_pd(p, PB_UP(p, ninf, 2));
+		p = _mm512_max_pd(p, PB_UP(p, ninf, 4));
+		__m512d ex = _mm512_max_pd(PB_UP(p, ninf, 1), carry);
+		pre |= (unsigned long long)(_mm512_cmp_pd_mask(v[k], ex, _CMP_GT_OQ) & ld[k]) << (8 * k);
+		carry = _mm512_permutexvar_pd(last, _mm512_max_pd(p, carry));
+	}
+	if (!(_mm512_reduce_max_pd(vhi) - _mm512_reduce_min_pd(vlo) < t))
+		return 0;
+	carry = ninf;
+	for (size_t k = nv; k-- > 0;) {
+		__m512d p = v[k];
+		p = _mm512_max_pd(p, PB_DOWN(p, ninf, 1));
+		p = _mm512_max_pd(p, PB_DOWN(p, ninf, 2));
+		p = _mm512_max_pd(p, PB_DOWN(p, ninf, 4));
+		__m512d ex = _mm512_max_pd(PB_DOWN(p, ninf, 1), carry);
+		suf |= (unsigned long long)(_mm512_cmp_pd_mask(v[k], ex, _CMP_GT_OQ) & ld[k]) << (8 * k);
+		carry = _mm512_permutexvar_pd(first, _mm512_max_pd(p, carry));
+	}
+	keep = pre | suf;
+	valid = len == 64 ? ~0ULL : (1ULL << len) - 1;
+	/* A run's entry goes where its last point was: the order stays. */
+	ends = ~keep & ((keep >> 1) | (1ULL << (len - 1))) & valid;
+	for (size_t r = s0; r < e; r++)
+		fb[ti[r]] = (unsigned char)((keep >> (r - s0)) & 1);
+	carry = pinf;
+	for (size_t k = 0; k < nv; k++) {
+		__mmask8 kk = (__mmask8)(keep >> (8 * k)), b = kk;
+		__mmask8 em = (__mmask8)((keep | ends) >> (8 * k));
+		__m512d mn = _mm512_mask_blend_pd(kk, v[k], pinf);
+		__m512i ix = _mm512_maskz_loadu_epi64(ld[k], ti + s0 + 8 * k);
+		mn = _mm512_mask_min_pd(mn, (__mmask8)~b, mn, PB_UP(mn, pinf, 1));
+		b = (__mmask8)(b | (b << 1));
+		mn = _mm512_mask_min_pd(mn, (__mmask8)~b, mn, PB_UP(mn, pinf, 2));
+		b = (__mmask8)(b | (b << 2));
+		mn = _mm512_mask_min_pd(mn, (__mmask8)~b, mn, PB_UP(mn, pinf, 4));
+		b = (__mmask8)(b | (b << 4));
+		mn = _mm512_mask_min_pd(mn, (__mmask8)~b, mn, carry);
+		carry = _mm512_permutexvar_pd(last, mn);
+		__m512d sel = _mm512_mask_blend_pd(kk, mn, v[k]);
+		_mm512_mask_compressstoreu_pd(tv + o, em, sel);
+		_mm512_mask_compressstoreu_epi64(ti + o, em, ix);
+		o += (size_t)__builtin_popcount(em);
+	}
+	*po = o;
+	return 1;
+}
+#endif
+static size_t prominence_bases(const double *c, size_t n, double floor, const double *bthr,
+                               double *lb, double *rb, double *tv, size_t *ti, double *sval,
                                double *smin, size_t *sidx, size_t *mx)
 {
 	size_t m = 0, top = 0, nmx = 0, i = 1;
@@ -1094,7 +1240,8 @@ static size_t prominence_bases(const double *c, size_t n, double floor, double *
 	ti[m++] = 0;
 #ifdef PK_AVX512
 	__builtin_cpu_init();
-	if (__builtin_cpu_supports("avx512f") && __builtin_cpu_supports("popcnt"))
+	int avx512 = __builtin_cpu_supports("avx512f") && __builtin_cpu_supports("popcnt");
+	if (avx512)
 		i = gather_avx512(c, n, i, floor, tv, ti, mx, &m, &nmx, &nan);
 #endif
 #ifdef IRR_SSE2
@@ -1139,6 +1286,38 @@ static size_t prominence_bases(const double *c, size_t n, double floor, double *
 	}
 	tv[m] = c[n - 1];
 	ti[m++] = n - 1;
+	if (bthr && !nan) {
+		/* In place: o (written) never passes the point read. fb (sval's
+		 * storage, free until the stack pass): per point, whether it
+		 * stays; read back for the maxima. */
+		unsigned char *fb = (unsigned char *)sval;
+		size_t o = 0, q = 0;
+		for (size_t s0 = 0; s0 < m; s0 += PB_CHUNK) {
+			size_t e = s0 + PB_CHUNK < m ? s0 + PB_CHUNK : m;
+			double t = bthr[ti[s0] / NOISE_BLOCK];
+			int done;
+			for (size_t b = ti[s0] / NOISE_BLOCK + 1; b <= ti[e - 1] / NOISE_BLOCK; b++)
+				t = bthr[b] < t ? bthr[b] : t;
+#ifdef PK_AVX512
+			if (avx512)
+				done = chunk_avx512(tv, ti, s0, e, t, &o, fb);
+			else
+#endif
+				done = chunk_plain(tv, ti, s0, e, t, &o, fb);
+			for (size_t r = s0; !done && r < e; r++) {
+				fb[ti[r]] = 1;
+				tv[o] = tv[r];
+				ti[o++] = ti[r];
+			}
+		}
+		m = o;
+		for (size_t p = 0; p < nmx; p++) {
+			size_t x = mx[p];
+			mx[q] = x;
+			q += fb[x];
+		}
+		nmx = q;
+	}
 	/* One pass for both sides. The stack holds values strictly
 	 * decreasing, each with the lowest value of its own segment (from
 	 * the entry below it, exclusive, to itself). A point v takes off
@@ -2046,7 +2225,9 @@ checked:
 		for (size_t b = 1; b < nb; b++)
 			if (w.bsn[b] < nmin)
 				nmin = w.bsn[b];
-		nmx = prominence_bases(w.c, n, o->min_snr * nmin, w.lb, w.rb, w.tv, w.stk2,
+		/* (No thresholds here: few maxima, and a noise stretch's
+		 * chunks would cost about what they spare.) */
+		nmx = prominence_bases(w.c, n, o->min_snr * nmin, NULL, w.lb, w.rb, w.tv, w.stk2,
 		                       w.base, w.smin, w.stk3, w.mx);
 	}
 	/* (base: free now) */
@@ -2285,7 +2466,10 @@ checked:
 				nd2[i] = -w.d2[i];
 			/* Only lobes above zero count: the floor is the least
 			 * positive value. */
-			size_t nmx2 = prominence_bases(nd2, n, DBL_TRUE_MIN, w.lb, w.rb, w.tv, w.stk2,
+			double *thr = w.blk; /* (the block levels' scratch: free) */
+			for (size_t b = 0; b < nb; b++)
+				thr[b] = o->shoulder_factor * o->min_snr * w.bsd[b];
+			size_t nmx2 = prominence_bases(nd2, n, DBL_TRUE_MIN, thr, w.lb, w.rb, w.tv, w.stk2,
 			                               w.base, w.smin, w.stk3, w.mx);
 			for (size_t k = 0; k < nmx2; k++) {
 				size_t i = w.mx[k];
