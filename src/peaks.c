@@ -281,7 +281,8 @@ static double select_small(double *a, size_t n, size_t k)
 #define SELECT_GAP 36 /* about 3 sd of the sample rank of the k-th value */
 /* select_kth's bracket for the k-th of a[0..n-1] (n >= 2 * SELECT_SAMPLE):
  * two order statistics of an evenly spaced sample. */
-static void kth_bracket(const double *a, size_t n, size_t k, double *lo, double *hi)
+static void kth_bracket(const double *a, size_t n, size_t k, double *lo, double *hi,
+                        double *mid)
 {
 	double smp[SELECT_SAMPLE];
 	size_t step = n / SELECT_SAMPLE, r = (size_t)((double)k * SELECT_SAMPLE / (double)n);
@@ -296,6 +297,12 @@ static void kth_bracket(const double *a, size_t n, size_t k, double *lo, double 
 	if (rhi < SELECT_SAMPLE - 1)
 		*hi = rlo > 0 ? select_small(smp + rlo, SELECT_SAMPLE - rlo, rhi - rlo)
 		              : select_small(smp, SELECT_SAMPLE, rhi);
+	/* The sample's own k-th (between the two, which left smp split
+	 * around them), where a caller may split the bracket in two. */
+	if (mid) {
+		size_t a0 = rlo > 0 ? rlo : 0, e0 = rhi < SELECT_SAMPLE - 1 ? rhi : SELECT_SAMPLE;
+		*mid = select_small(smp + a0, e0 - a0, r - a0);
+	}
 }
 
 static double select_kth(double *a, size_t n, size_t k)
@@ -303,7 +310,7 @@ static double select_kth(double *a, size_t n, size_t k)
 	if (n >= 2 * SELECT_SAMPLE) {
 		double lo, hi;
 		size_t below = 0, m = 0;
-		kth_bracket(a, n, k, &lo, &hi);
+		kth_bracket(a, n, k, &lo, &hi, NULL);
 		/* Without branches (their outcome is a coin toss here): a[i]
 		 * and a[m] always trade places, and m moves on only past a value
 		 * inside, so a[0..m-1] are those and a stays a permutation. */
@@ -324,8 +331,8 @@ static double select_kth(double *a, size_t n, size_t k)
  * median_near, which reads them anyway): what lies below the bracket is
  * counted, what lies inside gathered in order into buf. */
 typedef struct kth_gather {
-	double lo, hi, *buf;
-	size_t below, m;
+	double lo, mid, hi, *buf, *buf2; /* [lo, mid) to buf, [mid, hi] to buf2 */
+	size_t below, m, m2;
 } kth_gather;
 
 static double median_inplace(double *a, size_t n)
@@ -347,6 +354,7 @@ static size_t bracket_avx512(const double *src, size_t n, size_t i, int absval, 
 {
 	__m512d vlo = _mm512_set1_pd(lo), vhi = _mm512_set1_pd(hi), vmid = _mm512_set1_pd(mid);
 	__m512d glo = _mm512_set1_pd(g ? g->lo : 0.0), ghi = _mm512_set1_pd(g ? g->hi : 0.0);
+	__m512d gmid = _mm512_set1_pd(g ? g->mid : 0.0);
 	__m512i sign = _mm512_set1_epi64(absval ? 0x7fffffffffffffffLL : -1LL);
 	size_t m = *pm, m2 = *pm2, below = *pbelow, above = *pabove;
 	for (; i + 8 <= n; i += 8) {
@@ -363,9 +371,12 @@ static size_t bracket_avx512(const double *src, size_t n, size_t i, int absval, 
 		if (g) {
 			__mmask8 gin = _mm512_cmp_pd_mask(v, glo, _CMP_GE_OQ) &
 			               _mm512_cmp_pd_mask(v, ghi, _CMP_LE_OQ);
+			__mmask8 gup = gin & _mm512_cmp_pd_mask(v, gmid, _CMP_GE_OQ);
 			g->below += (size_t)__builtin_popcount(_mm512_cmp_pd_mask(v, glo, _CMP_LT_OQ));
-			_mm512_mask_compressstoreu_pd(g->buf + g->m, gin, v);
-			g->m += (size_t)__builtin_popcount(gin);
+			_mm512_mask_compressstoreu_pd(g->buf + g->m, gin & (__mmask8)~gup, v);
+			_mm512_mask_compressstoreu_pd(g->buf2 + g->m2, gup, v);
+			g->m += (size_t)__builtin_popcount(gin & (__mmask8)~gup);
+			g->m2 += (size_t)__builtin_popcount(gup);
 		}
 	}
 	*pm = m;
@@ -599,18 +610,21 @@ static double median_near(const double *src, size_t n, int absval, double near,
 		 * the comparisons' all-ones lanes (-1 each). */
 		__m128d vlo = _mm_set1_pd(lo), vhi = _mm_set1_pd(hi), vmid = _mm_set1_pd(mid);
 		__m128d glo = _mm_set1_pd(g ? g->lo : 0.0), ghi = _mm_set1_pd(g ? g->hi : 0.0);
+		__m128d gmid = _mm_set1_pd(g ? g->mid : 0.0);
 		__m128d sign = absval ? _mm_set1_pd(-0.0) : _mm_setzero_pd();
 		__m128i nb = _mm_setzero_si128(), ngb = nb, na = nb;
 		long long t[2];
 		if (g) {
-			double *gb = g->buf;
-			size_t gm = g->m;
+			double *gb = g->buf, *gb2 = g->buf2;
+			size_t gm = g->m, gm2 = g->m2;
 			for (; i + 2 <= n; i += 2) {
 				__m128d v = _mm_andnot_pd(sign, _mm_loadu_pd(src + i));
 				__m128d vin = _mm_and_pd(_mm_cmpge_pd(v, vlo), _mm_cmple_pd(v, vhi));
 				int up = _mm_movemask_pd(_mm_and_pd(vin, _mm_cmpge_pd(v, vmid)));
 				int in = _mm_movemask_pd(vin) & ~up;
-				int gin = _mm_movemask_pd(_mm_and_pd(_mm_cmpge_pd(v, glo), _mm_cmple_pd(v, ghi)));
+				__m128d vgin = _mm_and_pd(_mm_cmpge_pd(v, glo), _mm_cmple_pd(v, ghi));
+				int gup = _mm_movemask_pd(_mm_and_pd(vgin, _mm_cmpge_pd(v, gmid)));
+				int gin = _mm_movemask_pd(vgin) & ~gup;
 				nb = _mm_sub_epi64(nb, _mm_castpd_si128(_mm_cmplt_pd(v, vlo)));
 				na = _mm_sub_epi64(na, _mm_castpd_si128(_mm_cmpgt_pd(v, vhi)));
 				ngb = _mm_sub_epi64(ngb, _mm_castpd_si128(_mm_cmplt_pd(v, glo)));
@@ -626,8 +640,13 @@ static double median_near(const double *src, size_t n, int absval, double near,
 				gm += (size_t)(gin & 1);
 				_mm_storeh_pd(gb + gm, v);
 				gm += (size_t)(gin >> 1);
+				_mm_storel_pd(gb2 + gm2, v);
+				gm2 += (size_t)(gup & 1);
+				_mm_storeh_pd(gb2 + gm2, v);
+				gm2 += (size_t)(gup >> 1);
 			}
 			g->m = gm;
+			g->m2 = gm2;
 			_mm_storeu_si128((__m128i *)t, ngb);
 			g->below += (size_t)(t[0] + t[1]);
 		} else {
@@ -664,9 +683,12 @@ static double median_near(const double *src, size_t n, int absval, double near,
 		m += (size_t)(in & !up);
 		m2 += (size_t)up;
 		if (g) {
+			int gin = (v >= g->lo) & (v <= g->hi), gup = gin & (v >= g->mid);
 			g->buf[g->m] = v;
+			g->buf2[g->m2] = v;
 			g->below += v < g->lo;
-			g->m += (v >= g->lo) & (v <= g->hi);
+			g->m += (size_t)(gin & !gup);
+			g->m2 += (size_t)gup;
 		}
 	}
 	if (near > 0.0 && below <= k && k < below + m + m2) {
@@ -2034,9 +2056,10 @@ checked:
 			size_t nd = n - 2, kd = nd / 2;
 			kth_gather g, *gp = NULL;
 			if (nd >= 2 * SELECT_SAMPLE) {
-				kth_bracket(dd + 1, nd, kd, &g.lo, &g.hi);
+				kth_bracket(dd + 1, nd, kd, &g.lo, &g.hi, &g.mid);
 				g.buf = w.rb;
-				g.below = g.m = 0;
+				g.buf2 = w.smin; /* free until the prominences */
+				g.below = g.m = g.m2 = 0;
 				gp = &g;
 			}
 			for (size_t b = 0; b < nb; b++) {
@@ -2045,8 +2068,12 @@ checked:
 					e = n - 1;
 				bn[b] = noise_of(dd, a > 0 ? a : 1, e, w.scratch, &near, gp);
 			}
+			/* The bracket split at the sample's own median: only the
+			 * half holding the median is searched. */
 			if (gp && g.below <= kd && kd < g.below + g.m)
 				sigma = 1.4826 * select_small(g.buf, g.m, kd - g.below) / sqrt(6.0);
+			else if (gp && g.below + g.m <= kd && kd < g.below + g.m + g.m2)
+				sigma = 1.4826 * select_small(g.buf2, g.m2, kd - g.below - g.m) / sqrt(6.0);
 			else
 				sigma = noise_of(dd, 1, n - 1, w.scratch, NULL, NULL);
 		}
