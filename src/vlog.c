@@ -3,7 +3,7 @@
  * for the absorbance conversion of spectrum.c (A = -log10 T).
  *
  * Why identical and not merely accurate: every later stage (noise, peaks,
- * verdicts, the result cache) must not change with the processor, and the
+ * verdicts) must not change with the processor, and the
  * plain C path (IRR_NO_SIMD builds, other machines) calls log().
  *
  * Method: the table-driven logarithm of Szabolcs Nagy (Arm optimized-routines
