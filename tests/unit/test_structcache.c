@@ -6,7 +6,10 @@
  * by a live check outlive the cache. The spectrum is the Larkspur demo file
  * examples/oxidation-leftover-alcohol/LPC-2231-04.jdx; no band value is
  * asserted here (those are in test_reconcile.c against the shared measured
- * spectra). */
+ * spectra). Sources of what is asserted: the contract in structcache.h;
+ * the OpenSMILES specification (an unclosed ring bond is an error); the
+ * free O-H window of an alcohol in the gas phase, group-tables/oxygen.json
+ * after Silverstein, Webster & Kiemle, 7th ed., ch. 2 (from memory). */
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
