@@ -6,12 +6,14 @@
 #include "request_internal.h"
 
 #include <errno.h>
+#include <fcntl.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 #include <strings.h>
 #include <sys/stat.h>
 #include <time.h>
+#include <unistd.h>
 
 #include <cJSON.h>
 
@@ -786,36 +788,49 @@ int irr_request_parse(irr_request **out, const char *json, size_t len,
 int irr_request__slurp(char **out, size_t *len, const char *path, size_t max_bytes,
                        irr_error *err)
 {
-	FILE *f;
 	struct stat st;
 	char *buf;
-	size_t n;
+	size_t n = 0;
+	int fd;
 	*out = NULL;
-	f = fopen(path, "rb");
-	if (!f)
+	/* Plain descriptors, not stdio: the whole file goes into one buffer of
+	 * its own size, which a FILE would only copy through its own.
+	 * O_NONBLOCK: a FIFO given as input is refused below instead of
+	 * waiting for a writer; regular files ignore it. */
+	fd = open(path, O_RDONLY | O_CLOEXEC | O_NONBLOCK);
+	if (fd < 0)
 		return irr_error_set(err, IRR_EIO, path, 0, "cannot open: %s", strerror(errno));
-	if (fstat(fileno(f), &st) != 0 || !S_ISREG(st.st_mode)) {
-		fclose(f);
+	if (fstat(fd, &st) != 0 || !S_ISREG(st.st_mode)) {
+		close(fd);
 		return irr_error_set(err, IRR_EIO, path, 0, "not a regular file");
 	}
 	if ((size_t)st.st_size > max_bytes) {
-		fclose(f);
+		close(fd);
 		return irr_error_set(err, IRR_ELIMIT, path, 0, "file is %lld bytes, more than the limit of %zu",
 		                     (long long)st.st_size, max_bytes);
 	}
 	buf = malloc((size_t)st.st_size + 1);
 	if (!buf) {
-		fclose(f);
+		close(fd);
 		return irr_error_set(err, IRR_ENOMEM, path, 0, "out of memory");
 	}
-	n = fread(buf, 1, (size_t)st.st_size, f);
-	if (ferror(f)) {
-		int e = errno;
-		fclose(f);
-		free(buf);
-		return irr_error_set(err, IRR_EIO, path, 0, "read failed: %s", strerror(e));
+	/* What the file held when it was measured (a file that grows meanwhile
+	 * is read to that size, one that shrinks to its end). */
+	while (n < (size_t)st.st_size) {
+		ssize_t got = read(fd, buf + n, (size_t)st.st_size - n);
+		if (got < 0 && errno == EINTR)
+			continue;
+		if (got < 0) {
+			int e = errno;
+			close(fd);
+			free(buf);
+			return irr_error_set(err, IRR_EIO, path, 0, "read failed: %s", strerror(e));
+		}
+		if (got == 0)
+			break;
+		n += (size_t)got;
 	}
-	fclose(f);
+	close(fd);
 	buf[n] = '\0';
 	*out = buf;
 	*len = n;
