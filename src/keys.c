@@ -86,6 +86,7 @@ static const char *const keys[][2] = {
 	{"sulfoxide", "sulfoxide"},
 	{"tert_butyl", "tert-butyl"},
 	{"thiocarbonyl", "thiocarbonyl"},
+	{"thioester", "thioester"},
 	{"thiol", "thiol"},
 	{"thiophene_ring", "thiophene ring"},
 	{"urea", "urea"},

@@ -76,7 +76,8 @@ static const char *const caution_text[CAU_N] = {
 /* ---------------------------------------------------------------- context */
 
 enum { CL_NONE = 0, CL_KETONE, CL_ALDEHYDE, CL_ACID, CL_CARBOXYLATE, CL_ESTER,
-       CL_ANHYDRIDE, CL_AMIDE, CL_ACID_HALIDE, CL_UREA, CL_CARBAMATE, CL_CARBONATE };
+       CL_ANHYDRIDE, CL_AMIDE, CL_ACID_HALIDE, CL_UREA, CL_CARBAMATE, CL_CARBONATE,
+       CL_THIOESTER };
 
 /* Atom flags: which group already holds the atom (so that, e.g., an ester
  * O is not also an ether O, an amide N not also an amine N). */
@@ -290,6 +291,21 @@ static int bridge_o(const ctx *c, int i)
 	return -1;
 }
 
+/* Whether the S on carbonyl carbon i carries a carbon on its other side
+ * (a thioester, not a thioacid C(=O)SH or its salt). */
+static int thio_carbon(const ctx *c, int i)
+{
+	FOR_NB(c, i, e) {
+		int s = c->na[e];
+		if (EL(c, s) != 16 || c->no[e] != 1 || DEG(c, s) != 2 || c->at[s].charge)
+			continue;
+		FOR_NB(c, s, f)
+			if (c->na[f] != i && EL(c, c->na[f]) == 6)
+				return 1;
+	}
+	return 0;
+}
+
 static void find_carbonyls(ctx *c)
 {
 	for (size_t i = 0; i < c->n; i++) {
@@ -333,8 +349,10 @@ static void find_carbonyls(ctx *c)
 				nOther++;
 		}
 		int cl = CL_NONE;
-		if (nS || nOther)
-			cl = CL_NONE; /* thioesters, acylsilanes...: no key */
+		if (nS == 1 && !nO && !nN && !nX && !nOther && nC + hC == 1 && thio_carbon(c, (int)i))
+			cl = CL_THIOESTER; /* R-C(=O)-S-R', thiolactones too */
+		else if (nS || nOther)
+			cl = CL_NONE; /* thioacids, thiocarbonates, thiocarbamates, acylsilanes...: no key */
 		else if (nX >= 1)
 			cl = CL_ACID_HALIDE; /* also chloroformates, carbamoyl chlorides, phosgene */
 		else if (nN >= 2)
@@ -670,6 +688,22 @@ static void perceive_carbonyls(ctx *c)
 			claim(c, oo);
 			if (x)
 				x->attrs.n_h = HC(c, nn);
+			break;
+		}
+		case CL_THIOESTER: {
+			/* The S is the thioester's: no sulfide beside it. */
+			int sx = hetero_of(c, i, 16), r = -1;
+			FOR_NB(c, sx, e)
+				if (c->na[e] != i)
+					r = c->na[e];
+			x = emit(c, "thioester", i, o, sx);
+			add_atom(c, x, r);
+			claim(c, sx);
+			if (x) {
+				x->attrs.conjugated = carbonyl_conjugated(c, i);
+				x->attrs.aryl = r >= 0 && (AROM(c, r) || vinyl_carbon(c, r));
+				x->attrs.ring_size = ring_with(c, i, sx);
+			}
 			break;
 		}
 		case CL_CARBONATE: {
@@ -1363,7 +1397,8 @@ static void perceive_heteroatoms(ctx *c)
 			if (oxo == 0 && a->charge == 0) {
 				if (a->h_count > 0 && a->degree == 1 && nC == 1)
 					emit(c, "thiol", i, c->na[c->ns[i]], -1);
-				else if (a->degree == 2 && nC == 2 && a->h_count == 0)
+				else if (a->degree == 2 && nC == 2 && a->h_count == 0 &&
+				         !(c->flags[i] & F_CLAIMED))
 					emit(c, "sulfide", i, -1, -1);
 			} else if (oxo == 1 && a->degree == 3 && nC == 2) {
 				emit(c, "sulfoxide", i, -1, -1);

@@ -16,7 +16,9 @@
  *             formate, anhydride [ring_size, conjugated], acid_halide [conjugated],
  *             amide [n_h = 2 primary, 1 secondary, 0 tertiary; conjugated],
  *             lactam [ring_size, n_h], imide [ring_size, n_h], urea [n_h],
- *             carbamate [n_h], carbonate [ring_size]
+ *             carbamate [n_h], carbonate [ring_size], thioester (R-C(=O)-S-R',
+ *             thiolactones too) [conjugated, aryl = vinyl/aryl on the S side,
+ *             ring_size]
  *   N:        amine [n_h = 2/1/0; aryl = N on an aromatic ring], ammonium [n_h =
  *             H on N+: 3/2/1/0; also an amine (aliphatic first, then aryl,
  *             then pyridine-type N) written with a separate HCl, HBr or HI

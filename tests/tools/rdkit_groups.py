@@ -44,6 +44,9 @@ DEFS = {
     "ester": "[#6][#6X3](=[OX1])!@[OX2][#6;!$([#6]=[O,S])]",
     "lactone": "[#6][#6X3](=[OX1])@[#8X2]@[#6;!$([#6]=[O,S])]",
     "alkene": "[CX3;!a]=[CX3;!a]",
+    # thiol ester R-C(=O)-S-R' (R = C or H on the acyl side); thioacids,
+    # thiocarbonates and thiocarbamates have no C or H there
+    "thioester": "[CX3;$([CH1]),$(C-[#6])](=[OX1])-[SX2]-[#6]",
 }
 
 
