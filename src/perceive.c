@@ -41,7 +41,8 @@ struct irr_inventory {
 enum {
 	CAU_AZIDE, CAU_ACYL_AZIDE, CAU_DIAZO, CAU_DIAZONIUM, CAU_PEROXIDE,
 	CAU_POLYNITRO, CAU_NITRATE, CAU_ISOCYANATE, CAU_ISONITRILE,
-	CAU_NITROSAMINE, CAU_CYANIDE, CAU_PERCHLORATE, CAU_HYDRAZINE, CAU_PHOSGENE, CAU_N
+	CAU_NITROSAMINE, CAU_CYANIDE, CAU_PERCHLORATE, CAU_HYDRAZINE, CAU_PHOSGENE,
+	CAU_DIALKYL_SULFATE, CAU_N
 };
 static const char *const caution_text[CAU_N] = {
 	"azide: organic and inorganic azides can decompose explosively and give toxic "
@@ -71,7 +72,9 @@ static const char *const caution_text[CAU_N] = {
 	"hydrazine: toxic and a suspected carcinogen; follow local safety rules and the lab's "
 	"approved procedures",
 	"phosgene (carbonyl dihalide): very toxic by inhalation; follow local safety rules "
-	"and the lab's approved procedures"};
+	"and the lab's approved procedures",
+	"dialkyl sulfate: a strong alkylating agent, very toxic (delayed effects) and a "
+	"probable human carcinogen; follow local safety rules and the lab's approved procedures"};
 
 /* ---------------------------------------------------------------- context */
 
@@ -1376,7 +1379,7 @@ static void perceive_heteroatoms(ctx *c)
 		const irr_atom *a = &c->at[i];
 		if (z == 16 && !a->aromatic) {
 			int oxo = oxo_count(c, i), nC = 0, nN = -1, nOH = -1, nOR = -1, nOm = -1,
-			    nCl = -1;
+			    nCl = -1, nOR2 = -1;
 			FOR_NB(c, i, e) {
 				int j = c->na[e], zj = EL(c, j);
 				if (is_oxo(c, i, j, c->no[e], 8))
@@ -1389,6 +1392,8 @@ static void perceive_heteroatoms(ctx *c)
 					nOm = j;
 				else if (zj == 8 && HC(c, j) > 0)
 					nOH = j;
+				else if (zj == 8 && nOR >= 0)
+					nOR2 = j;
 				else if (zj == 8)
 					nOR = j;
 				else if (zj == 17)
@@ -1423,6 +1428,18 @@ static void perceive_heteroatoms(ctx *c)
 				} else if (nC == 1 && nCl >= 0) {
 					x = emit(c, "sulfonyl_chloride", i, nCl, -1);
 					claim(c, nCl);
+				} else if (nC == 0 && nOR >= 0 && nOR2 >= 0) {
+					/* (RO)2SO2: the two ester O are the sulfate's,
+					 * not ethers. */
+					x = emit(c, "sulfate_ester", i, nOR, nOR2);
+					claim(c, nOR);
+					claim(c, nOR2);
+					c->caution[CAU_DIALKYL_SULFATE] = 1;
+				} else if (nC == 0 && nOR >= 0 && (nOm >= 0 || nOH >= 0)) {
+					/* ROSO3- (or ROSO3H): detergents such as SDS. */
+					x = emit(c, "alkyl_sulfate", i, nOR, nOm >= 0 ? nOm : nOH);
+					claim(c, nOR);
+					claim(c, nOH);
 				}
 				(void)x;
 			}

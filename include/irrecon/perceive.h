@@ -43,7 +43,8 @@
  *             aryl], epoxide, peroxide
  *   S:        thiol, sulfide, disulfide, sulfoxide, sulfone, sulfonamide [n_h],
  *             sulfonate_ester, sulfonic_acid, sulfonate (the anion),
- *             sulfonyl_chloride, thiocarbonyl
+ *             sulfonyl_chloride, thiocarbonyl, sulfate_ester ((RO)2SO2, with a
+ *             caution), alkyl_sulfate (ROSO3- or ROSO3H)
  *   P:        phosphine, phosphine_oxide, phosphate, phosphonate, p_h
  *   Si, B:    si_h, si_methyl, siloxane (Si-O-Si or Si-O-C), boronic_acid,
  *             boronic_ester

@@ -46,6 +46,9 @@ DEFS = {
     "alkene": "[CX3;!a]=[CX3;!a]",
     # thiol ester R-C(=O)-S-R' (R = C or H on the acyl side); thioacids,
     # thiocarbonates and thiocarbamates have no C or H there
+    # sulfate esters: (RO)2SO2, and ROSO3- / ROSO3H
+    "sulfate_ester": "[SX4](=[OX1])(=[OX1])([OX2]-[#6])[OX2]-[#6]",
+    "alkyl_sulfate": "[SX4](=[OX1])(=[OX1])([OX2]-[#6])[$([OX1-]),$([OX2H1])]",
     "thioester": "[CX3;$([CH1]),$(C-[#6])](=[OX1])-[SX2]-[#6]",
 }
 

@@ -425,6 +425,8 @@ static void cautions(void **state)
 		{"potassium cyanide", "[C-]#N.[K+]", "cyanide"},
 		{"hydrazine", "NN", "hydrazine"},
 		{"phosgene", "ClC(Cl)=O", "phosgene"},
+		/* IARC group 2A (probable human carcinogen); from memory */
+		{"dimethyl sulfate", "COS(=O)(=O)OC", "dialkyl sulfate"},
 	};
 	for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
 		irr_inventory *inv = perceive(cases[i].smiles, NULL);
@@ -436,9 +438,11 @@ static void cautions(void **state)
 		}
 		irr_inventory_free(inv);
 	}
-	/* One nitro group, an ester, an amine: no caution. */
+	/* One nitro group, an ester, an amine, a detergent (sodium dodecyl
+	 * sulfate, not an alkylating agent): no caution. */
 	static const char *const quiet[] = {"O=[N+]([O-])c1ccccc1", "CCOC(C)=O", "CCN",
-	                                    "CC(=O)Nc1ccc(O)cc1"};
+	                                    "CC(=O)Nc1ccc(O)cc1",
+	                                    "CCCCCCCCCCCCOS(=O)(=O)[O-].[Na+]"};
 	for (size_t i = 0; i < sizeof quiet / sizeof quiet[0]; i++) {
 		irr_inventory *inv = perceive(quiet[i], NULL);
 		assert_int_equal(irr_inventory_caution_count(inv), 0);
