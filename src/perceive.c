@@ -1160,18 +1160,92 @@ static void perceive_alkenes(ctx *c)
 
 /* ---------------------------------------------------------------- rings */
 
+/* The ring's atoms in bonded order, starting at ring[0]; 0 when the ring
+ * cannot be walked (it always can for an SSSR ring). */
+static int ring_in_order(const ctx *c, const int *ring, int size, int *order)
+{
+	order[0] = ring[0];
+	int prev = -1;
+	for (int q = 1; q < size; q++) {
+		int cur = order[q - 1], next = -1;
+		FOR_NB(c, cur, e) {
+			int j = c->na[e];
+			if (j == prev)
+				continue;
+			for (int t = 0; t < size; t++)
+				if (ring[t] == j) {
+					next = j;
+					break;
+				}
+			if (next >= 0)
+				break;
+		}
+		if (next < 0)
+			return 0;
+		prev = cur;
+		order[q] = next;
+	}
+	return 1;
+}
+
+/* Whether the five-membered aromatic ring holding N-H atom `a` also holds
+ * an N without H (an azole rather than a pyrrole). */
+static int ring_has_acceptor_n(const ctx *c, int a)
+{
+	for (size_t r = 0; r < irr_molecule_ring_count(c->m); r++) {
+		const int *ring;
+		size_t size = irr_molecule_ring(c->m, r, &ring), q;
+		if (size != 5)
+			continue;
+		for (q = 0; q < size && ring[q] != a; q++)
+			;
+		if (q == size)
+			continue;
+		for (q = 0; q < size; q++)
+			if (ring[q] != a && EL(c, ring[q]) == 7 && HC(c, ring[q]) == 0 &&
+			    DEG(c, ring[q]) == 2)
+				return 1;
+	}
+	return 0;
+}
+
+/* The parent ring's name, for the report: which heteroatoms, and whether two
+ * of them are bonded (pyrazole vs imidazole, isoxazole vs oxazole). */
+static const char *azole_kind(const ctx *c, const int *order)
+{
+	int nN = 0, nO = 0, nS = 0, adjacent = 0;
+	for (int q = 0; q < 5; q++) {
+		int z = EL(c, order[q]), zn = EL(c, order[(q + 1) % 5]);
+		nN += z == 7;
+		nO += z == 8;
+		nS += z == 16;
+		if (z != 6 && zn != 6)
+			adjacent = 1;
+	}
+	if (nO + nS == 0)
+		return nN == 2 ? (adjacent ? "pyrazole" : "imidazole") : nN == 3 ? "triazole"
+		       : nN == 4                                            ? "tetrazole"
+		                                                            : "azole";
+	if (nO == 1 && nS == 0)
+		return nN == 1 ? (adjacent ? "isoxazole" : "oxazole") : nN == 2 ? "oxadiazole" : "azole";
+	if (nS == 1 && nO == 0)
+		return nN == 1 ? (adjacent ? "isothiazole" : "thiazole") : nN == 2 ? "thiadiazole" : "azole";
+	return "azole";
+}
+
 static void perceive_rings(ctx *c)
 {
 	for (size_t r = 0; r < irr_molecule_ring_count(c->m); r++) {
 		const int *ring;
 		int size = (int)irr_molecule_ring(c->m, r, &ring);
-		int all_arom = 1, nC = 0, nN_py = 0, nO = 0, nS = 0;
+		int all_arom = 1, nC = 0, nN = 0, nN_py = 0, nO = 0, nS = 0;
 		for (int q = 0; q < size; q++) {
 			int a = ring[q];
 			if (!AROM(c, a))
 				all_arom = 0;
 			int z = EL(c, a);
 			nC += z == 6;
+			nN += z == 7;
 			nO += z == 8;
 			nS += z == 16;
 			if (z == 7 && HC(c, a) == 0 && DEG(c, a) == 2)
@@ -1180,29 +1254,10 @@ static void perceive_rings(ctx *c)
 		if (!all_arom)
 			continue;
 		if (size == 6 && nC == 6) {
-			/* Walk the ring in order, mark positions bearing anything outside it. */
+			/* Mark positions bearing anything outside the ring. */
 			int order[6], subst[6], nsub = 0;
-			order[0] = ring[0];
-			int prev = -1;
-			for (int q = 1; q < 6; q++) {
-				int cur = order[q - 1], next = -1;
-				FOR_NB(c, cur, e) {
-					int j = c->na[e];
-					if (j == prev)
-						continue;
-					for (int t = 0; t < 6; t++)
-						if (ring[t] == j) {
-							next = j;
-							break;
-						}
-					if (next >= 0)
-						break;
-				}
-				if (next < 0)
-					break;
-				prev = cur;
-				order[q] = next;
-			}
+			if (!ring_in_order(c, ring, 6, order))
+				continue;
 			for (int q = 0; q < 6; q++) {
 				int a = order[q], out = 0;
 				FOR_NB(c, a, e) {
@@ -1252,6 +1307,21 @@ static void perceive_rings(ctx *c)
 			instance *x = new_instance(c, "pyridine_ring");
 			for (int q = 0; q < size; q++)
 				add_atom(c, x, ring[q]);
+		} else if (size == 5 && nN >= 1 && nN + nO + nS >= 2) {
+			/* Before furan/thiophene: oxazole and thiazole rings have their C=N. */
+			int order[5];
+			if (!ring_in_order(c, ring, 5, order))
+				continue;
+			instance *x = new_instance(c, "azole_ring");
+			int ch = 0;
+			for (int q = 0; q < 5; q++) {
+				add_atom(c, x, order[q]);
+				ch += EL(c, order[q]) == 6 && HC(c, order[q]) > 0;
+			}
+			if (x) {
+				x->attrs.n_h = ch;
+				set_pattern(x, azole_kind(c, order));
+			}
 		} else if (size == 5 && nO > 0) {
 			instance *x = new_instance(c, "furan_ring");
 			for (int q = 0; q < size; q++)
@@ -1260,12 +1330,24 @@ static void perceive_rings(ctx *c)
 			instance *x = new_instance(c, "thiophene_ring");
 			for (int q = 0; q < size; q++)
 				add_atom(c, x, ring[q]);
+		} else if (size == 5 && nN == 1 && nC == 4) {
+			instance *x = new_instance(c, "pyrrole_ring");
+			int ch = 0;
+			for (int q = 0; q < size; q++) {
+				add_atom(c, x, ring[q]);
+				ch += EL(c, ring[q]) == 6 && HC(c, ring[q]) > 0;
+			}
+			if (x)
+				x->attrs.n_h = ch;
 		}
 	}
+	/* A ring N-H next to (or across from) a ring N without H: the N-H...N
+	 * chains of imidazoles, pyrazoles, triazoles and tetrazoles in the solid
+	 * put their N-H stretch far below a pyrrole's or an indole's. */
 	for (size_t i = 0; i < c->n; i++)
 		if (EL(c, i) == 7 && AROM(c, i) && HC(c, i) > 0 && c->at[i].ring_size == 5 &&
 		    c->at[i].charge == 0)
-			emit(c, "pyrrole_nh", (int)i, -1, -1);
+			emit(c, ring_has_acceptor_n(c, (int)i) ? "azole_nh" : "pyrrole_nh", (int)i, -1, -1);
 }
 
 /* ---------------------------------------------------------------- alkyl */

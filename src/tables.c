@@ -47,7 +47,9 @@ static const char *const rule_attrs[] = {
 static const char *const patterns[] = {
 	"mono", "ortho", "meta", "para", "1,2,3", "1,2,4", "1,3,5", "penta_hexa",
 	"other", "vinyl", "vinylidene", "cis", "trans", "trisubstituted",
-	"tetrasubstituted", "unknown", "unsubstituted", "", NULL
+	"tetrasubstituted", "unknown", "unsubstituted", "imidazole", "pyrazole",
+	"triazole", "tetrazole", "oxazole", "isoxazole", "oxadiazole", "thiazole",
+	"isothiazole", "thiadiazole", "azole", "", NULL
 };
 
 /* --- arena: every string and array of a table set lives here ----------- */

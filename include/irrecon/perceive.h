@@ -35,8 +35,15 @@
  *             1,3,5 | penta_hexa | other (tetrasubstituted) | unsubstituted;
  *             one per six-membered all-carbon
  *             aromatic ring; fused rings count their fusion atoms as
- *             substituted], pyridine_ring, pyrrole_nh (pyrrole/indole/imidazole
- *             N-H), furan_ring, thiophene_ring
+ *             substituted], pyridine_ring (pyridines, diazines), pyrrole_nh
+ *             (pyrrole/indole N-H), azole_nh (N-H in a ring that also has an
+ *             N without H: imidazole, pyrazole, triazole, tetrazole), furan_ring,
+ *             thiophene_ring,
+ *             pyrrole_ring [n_h = ring C-H count], azole_ring (five-membered
+ *             aromatic ring with N and one more heteroatom) [pattern = imidazole
+ *             | pyrazole | triazole | tetrazole | oxazole | isoxazole |
+ *             oxadiazole | thiazole | isothiazole | thiadiazole | azole;
+ *             n_h = ring C-H count]
  *   alkyl:    methyl, methylene, methine (counts in `count`), gem_dimethyl,
  *             tert_butyl, isopropyl, long_chain (>= 4 contiguous CH2)
  *   ethers:   ether [aryl = 0 dialkyl, 1 aryl alkyl, 2 diaryl; vinyl counts as

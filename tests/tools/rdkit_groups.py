@@ -4,7 +4,8 @@
 # classes as in Silverstein, Webster & Kiemle, 7th ed., ch. 2; from memory),
 # the number of unique matches of a SMARTS written from that definition
 # (Daylight SMARTS syntax), matched by RDKit (Debian python3-rdkit), and for
-# benzene_ring the all-carbon aromatic six-rings of RDKit's SSSR. Reads
+# benzene_ring the all-carbon aromatic six-rings of RDKit's SSSR (and the
+# five-membered N-heteroaromatic rings likewise, below). Reads
 # `countdump -g` output on stdin; prints "smiles<TAB>key<TAB>irrecon<TAB>rdkit"
 # for every disagreement (tests/scripts/rdkit_counts.sh checks them).
 import sys
@@ -44,19 +45,51 @@ DEFS = {
     "ester": "[#6][#6X3](=[OX1])!@[OX2][#6;!$([#6]=[O,S])]",
     "lactone": "[#6][#6X3](=[OX1])@[#8X2]@[#6;!$([#6]=[O,S])]",
     "alkene": "[CX3;!a]=[CX3;!a]",
-    # thiol ester R-C(=O)-S-R' (R = C or H on the acyl side); thioacids,
-    # thiocarbonates and thiocarbamates have no C or H there
     # sulfate esters: (RO)2SO2, and ROSO3- / ROSO3H
     "sulfate_ester": "[SX4](=[OX1])(=[OX1])([OX2]-[#6])[OX2]-[#6]",
     "alkyl_sulfate": "[SX4](=[OX1])(=[OX1])([OX2]-[#6])[$([OX1-]),$([OX2H1])]",
+    # thiol ester R-C(=O)-S-R' (R = C or H on the acyl side); thioacids,
+    # thiocarbonates and thiocarbamates have no C or H there
     "thioester": "[CX3;$([CH1]),$(C-[#6])](=[OX1])-[SX2]-[#6]",
 }
+
+# Five-membered aromatic rings of RDKit's SSSR, by their ring atoms
+# (heteroaromatic ring classes as in Joule & Mills, Heterocyclic Chemistry,
+# 5th ed.; from memory): pyrrole_ring has one N and four C; azole_ring has
+# an N and at least one more N, O or S. A ring N-H is azole_nh when its ring
+# also has an N without H (imidazole, pyrazole, triazole, tetrazole), else
+# pyrrole_nh.
+FIVE_RING_KEYS = ("pyrrole_ring", "azole_ring", "pyrrole_nh", "azole_nh")
+
+
+def five_rings(mol):
+    n_of = dict.fromkeys(FIVE_RING_KEYS, 0)
+    for r in Chem.GetSSSR(mol):
+        if len(r) != 5:
+            continue
+        atoms = [mol.GetAtomWithIdx(i) for i in r]
+        if not all(a.GetIsAromatic() for a in atoms):
+            continue
+        z = [a.GetAtomicNum() for a in atoms]
+        n, o, s, c = z.count(7), z.count(8), z.count(16), z.count(6)
+        if n >= 1 and n + o + s >= 2:
+            n_of["azole_ring"] += 1
+        elif n == 1 and c == 4:
+            n_of["pyrrole_ring"] += 1
+        acceptor = any(a.GetAtomicNum() == 7 and a.GetTotalNumHs() == 0 and
+                       a.GetDegree() == 2 for a in atoms)
+        for a in atoms:
+            if a.GetAtomicNum() == 7 and a.GetTotalNumHs() > 0 and a.GetFormalCharge() == 0:
+                n_of["azole_nh" if acceptor else "pyrrole_nh"] += 1
+    return n_of
 
 
 
 def main():
     pats = {k: Chem.MolFromSmarts(v) for k, v in DEFS.items()}
     pats["benzene_ring"] = None
+    for key in FIVE_RING_KEYS:
+        pats[key] = None
     for line in sys.stdin:
         parts = line.rstrip("\n").split("\t")
         smi = parts[0]
@@ -77,6 +110,8 @@ def main():
                 n = sum(1 for r in Chem.GetSSSR(mol) if len(r) == 6 and all(
                     mol.GetAtomWithIdx(i).GetIsAromatic() and
                     mol.GetAtomWithIdx(i).GetAtomicNum() == 6 for i in r))
+            elif key in FIVE_RING_KEYS:
+                n = five_rings(mol)[key]
             else:
                 n = len(mol.GetSubstructMatches(pat))
             if n != ours.get(key, 0):

@@ -327,6 +327,37 @@ static void carbon_skeleton(void **state)
 	       W("ether", ANY, ANY, ANY, ANY, ANY, NULL, 0));
 	EXPECT("thiophene", "c1ccsc1", NULL, W("thiophene_ring", ANY, ANY, ANY, ANY, ANY, NULL, 1),
 	       W("sulfide", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	/* Five-membered N-heteroaromatics: the parent ring named from the
+	 * structure; n_h counts ring C-H (a tetrazole's one, a pyrrole's four). */
+	EXPECT("pyrrole", "c1cc[nH]c1", NULL, W("pyrrole_ring", ANY, ANY, 4, ANY, ANY, NULL, 1),
+	       W("pyrrole_nh", ANY, ANY, ANY, ANY, ANY, NULL, 1), W("azole_ring", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("1-methylpyrrole", "Cn1cccc1", NULL, W("pyrrole_ring", ANY, ANY, 4, ANY, ANY, NULL, 1),
+	       W("pyrrole_nh", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("amine", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("1-methylimidazole", "Cn1ccnc1", NULL,
+	       W("azole_ring", ANY, ANY, 3, ANY, ANY, "imidazole", 1), W("amine", ANY, ANY, ANY, ANY, ANY, NULL, 0),
+	       W("imine", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("imidazole", "c1c[nH]cn1", NULL, W("azole_ring", ANY, ANY, 3, ANY, ANY, "imidazole", 1),
+	       W("azole_nh", ANY, ANY, ANY, ANY, ANY, NULL, 1), W("pyrrole_nh", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("pyrazole", "c1cn[nH]c1", NULL, W("azole_ring", ANY, ANY, 3, ANY, ANY, "pyrazole", 1),
+	       W("azole_nh", ANY, ANY, ANY, ANY, ANY, NULL, 1), W("pyrrole_nh", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("1,2,4-triazole", "c1nc[nH]n1", NULL, W("azole_ring", ANY, ANY, 2, ANY, ANY, "triazole", 1),
+	       W("azole_nh", ANY, ANY, ANY, ANY, ANY, NULL, 1));
+	EXPECT("benzimidazole", "c1ccc2[nH]cnc2c1", NULL, W("azole_ring", ANY, ANY, 1, ANY, ANY, "imidazole", 1),
+	       W("azole_nh", ANY, ANY, ANY, ANY, ANY, NULL, 1), W("benzene_ring", ANY, ANY, ANY, ANY, ANY, "ortho", 1));
+	EXPECT("carbazole", "c1ccc2c(c1)[nH]c1ccccc12", NULL, W("pyrrole_ring", ANY, ANY, 0, ANY, ANY, NULL, 1),
+	       W("pyrrole_nh", ANY, ANY, ANY, ANY, ANY, NULL, 1), W("azole_nh", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("5-methyltetrazole", "Cc1nnn[nH]1", NULL, W("azole_ring", ANY, ANY, 0, ANY, ANY, "tetrazole", 1),
+	       W("azide", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("diazo", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("oxazole", "c1cocn1", NULL, W("azole_ring", ANY, ANY, 3, ANY, ANY, "oxazole", 1),
+	       W("furan_ring", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("ether", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("isoxazole", "c1ccon1", NULL, W("azole_ring", ANY, ANY, 3, ANY, ANY, "isoxazole", 1));
+	EXPECT("thiazole", "c1cscn1", NULL, W("azole_ring", ANY, ANY, 3, ANY, ANY, "thiazole", 1),
+	       W("thiophene_ring", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("sulfide", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("benzothiazole", "c1ccc2ncsc2c1", NULL, W("azole_ring", ANY, ANY, 1, ANY, ANY, "thiazole", 1),
+	       W("benzene_ring", ANY, ANY, ANY, ANY, ANY, "ortho", 1));
+	EXPECT("2,5-diphenyl-1,3,4-oxadiazole", "c1ccc(-c2nnc(-c3ccccc3)o2)cc1", NULL,
+	       W("azole_ring", ANY, ANY, 0, ANY, ANY, "oxadiazole", 1), W("benzene_ring", ANY, ANY, ANY, ANY, ANY, "mono", 2));
+	EXPECT("caffeine", "Cn1cnc2c1c(=O)n(C)c(=O)n2C", NULL, W("azole_ring", ANY, ANY, 1, ANY, ANY, "imidazole", 1));
 	/* Alkyl fragments. */
 	EXPECT("2,2,4-trimethylpentane", "CC(C)CC(C)(C)C", NULL,
 	       W("tert_butyl", ANY, ANY, ANY, ANY, ANY, NULL, 1), W("isopropyl", ANY, ANY, ANY, ANY, ANY, NULL, 1),
