@@ -42,7 +42,7 @@ enum {
 	CAU_AZIDE, CAU_ACYL_AZIDE, CAU_DIAZO, CAU_DIAZONIUM, CAU_PEROXIDE,
 	CAU_POLYNITRO, CAU_NITRATE, CAU_ISOCYANATE, CAU_ISONITRILE,
 	CAU_NITROSAMINE, CAU_CYANIDE, CAU_PERCHLORATE, CAU_HYDRAZINE, CAU_PHOSGENE,
-	CAU_DIALKYL_SULFATE, CAU_N
+	CAU_DIALKYL_SULFATE, CAU_NITRAMINE, CAU_NITRITE, CAU_AZO_ALKYL, CAU_N
 };
 static const char *const caution_text[CAU_N] = {
 	"azide: organic and inorganic azides can decompose explosively and give toxic "
@@ -74,7 +74,13 @@ static const char *const caution_text[CAU_N] = {
 	"phosgene (carbonyl dihalide): very toxic by inhalation; follow local safety rules "
 	"and the lab's approved procedures",
 	"dialkyl sulfate: a strong alkylating agent, very toxic (delayed effects) and a "
-	"probable human carcinogen; follow local safety rules and the lab's approved procedures"};
+	"probable human carcinogen; follow local safety rules and the lab's approved procedures",
+	"N-nitro compound (nitramine): potentially explosive; follow local safety rules and "
+	"the lab's approved procedures",
+	"alkyl nitrite: volatile and flammable, a vasodilator when inhaled; follow local safety "
+	"rules and the lab's approved procedures",
+	"aliphatic azo compound: decomposes on warming with release of nitrogen (azo "
+	"initiators are self-reactive); follow local safety rules and the lab's approved procedures"};
 
 /* ---------------------------------------------------------------- context */
 
@@ -826,9 +832,22 @@ static void perceive_nitrogen(ctx *c)
 				if (x)
 					x->attrs.aryl = AROM(c, rest);
 			} else if (rest >= 0 && EL(c, rest) == 8) {
+				emit(c, "nitrate_ester", i, rest, -1);
 				c->caution[CAU_NITRATE] = 1;
 				claim(c, rest);
+			} else if (rest >= 0 && EL(c, rest) == 7) {
+				emit(c, "nitramine", i, rest, -1);
+				c->caution[CAU_NITRAMINE] = 1;
+				claim(c, rest);
 			}
+			claim(c, i);
+			continue;
+		}
+		/* Nitrate ion (NO3-, written with N+ and two O-). */
+		if (oxo == 3 && a->degree == 3) {
+			emit(c, "nitrate_ion", i, -1, -1);
+			FOR_NB(c, i, e)
+				claim(c, c->na[e]);
 			claim(c, i);
 			continue;
 		}
@@ -845,8 +864,44 @@ static void perceive_nitrogen(ctx *c)
 					claim(c, rest);
 				}
 				claim(c, i);
+			} else if (rest >= 0 && EL(c, rest) == 8 && DEG(c, rest) == 2) {
+				/* R-O-N=O: a nitrite ester, not a nitroso compound. */
+				emit(c, "nitrite_ester", i, rest, -1);
+				c->caution[CAU_NITRITE] = 1;
+				claim(c, rest);
+				claim(c, i);
 			}
 			continue;
+		}
+		/* Azo: C-N=N-C with neither N aromatic (azobenzene, AIBN). Each pair
+		 * once, from its lower-numbered N. */
+		if (a->charge == 0 && a->degree == 2 && !a->aromatic && !(c->flags[i] & F_CLAIMED)) {
+			int partner = -1, carbon = -1;
+			FOR_NB(c, i, e) {
+				int k = c->na[e];
+				if (EL(c, k) == 7 && c->no[e] == 2)
+					partner = k;
+				else if (EL(c, k) == 6 && c->no[e] == 1)
+					carbon = k;
+			}
+			if (partner > i && carbon >= 0 && c->at[partner].charge == 0 &&
+			    DEG(c, partner) == 2 && !AROM(c, partner)) {
+				int carbon2 = -1;
+				FOR_NB(c, partner, e)
+					if (EL(c, c->na[e]) == 6 && c->no[e] == 1)
+						carbon2 = c->na[e];
+				if (carbon2 >= 0) {
+					instance *x = emit(c, "azo", i, partner, -1);
+					int aryl = AROM(c, carbon) + AROM(c, carbon2);
+					if (x)
+						x->attrs.aryl = aryl;
+					if (aryl == 0)
+						c->caution[CAU_AZO_ALKYL] = 1;
+					claim(c, i);
+					claim(c, partner);
+					continue;
+				}
+			}
 		}
 		/* Azide, diazo, diazonium: a central N+ between N or C and a terminal N. */
 		if (a->charge == 1 && a->degree == 2 && nbr_n >= 1 && !a->aromatic) {

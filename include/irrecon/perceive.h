@@ -23,8 +23,10 @@
  *             H on N+: 3/2/1/0; also an amine (aliphatic first, then aryl,
  *             then pyridine-type N) written with a separate HCl, HBr or HI
  *             component, e.g. "CCN.Cl"], imine, oxime, hydrazone, nitro [aryl], nitroso,
- *             azide, diazo, isocyanate, isothiocyanate, carbodiimide,
- *             nitrile [conjugated], isonitrile
+ *             nitrate_ester (R-O-NO2), nitrite_ester (R-O-N=O), nitramine
+ *             (N-NO2), nitrate_ion, azo (C-N=N-C, neither N aromatic) [aryl =
+ *             aromatic C on the N: 0/1/2], azide, diazo, isocyanate,
+ *             isothiocyanate, carbodiimide, nitrile [conjugated], isonitrile
  *   C-C:      alkyne_terminal, alkyne_internal,
  *             alkene [pattern = vinyl | vinylidene | cis | trans | trisubstituted |
  *             tetrasubstituted | unknown (1,2-disubstituted, stereo not given) |
@@ -65,8 +67,9 @@
  * `count` says how many there were and `atoms` lists all their atoms.
  * Counts (irr_counts) follow the SMILES as written (no salt inference).
  * Cautions: azide, acyl/sulfonyl azide, diazo, diazonium, peroxide, two or
- * more nitro groups, nitrate ester, isocyanate, isonitrile, N-nitroso,
- * cyanide (HCN, CN-), perchlorate, hydrazine, phosgene. acid_halide also
+ * more nitro groups, nitrate ester, nitramine, alkyl nitrite, aliphatic azo,
+ * isocyanate, isonitrile, N-nitroso, cyanide (HCN, CN-), perchlorate,
+ * hydrazine, phosgene, dialkyl sulfate. acid_halide also
  * covers chloroformates, carbamoyl chlorides and phosgene. */
 #ifndef IRRECON_PERCEIVE_H
 #define IRRECON_PERCEIVE_H

@@ -51,6 +51,12 @@ DEFS = {
     # thiol ester R-C(=O)-S-R' (R = C or H on the acyl side); thioacids,
     # thiocarbonates and thiocarbamates have no C or H there
     "thioester": "[CX3;$([CH1]),$(C-[#6])](=[OX1])-[SX2]-[#6]",
+    # N-O and N=N groups: R-O-NO2, R2N-NO2, NO3-, R-O-N=O, C-N=N-C
+    "nitrate_ester": "[#6][OX2][N+](=[OX1])[OX1-]",
+    "nitramine": "[#7X3]-[N+](=[OX1])[OX1-]",
+    "nitrate_ion": "[N+X3](=[OX1])([OX1-])[OX1-]",
+    "nitrite_ester": "[#6][OX2][NX2]=[OX1]",
+    "azo": "[#6]-[NX2;!a;+0]=[NX2;!a;+0]-[#6]",
 }
 
 # Five-membered aromatic rings of RDKit's SSSR, by their ring atoms

@@ -327,6 +327,20 @@ static void carbon_skeleton(void **state)
 	       W("ether", ANY, ANY, ANY, ANY, ANY, NULL, 0));
 	EXPECT("thiophene", "c1ccsc1", NULL, W("thiophene_ring", ANY, ANY, ANY, ANY, ANY, NULL, 1),
 	       W("sulfide", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	/* N-O and N=N groups: the O of a nitrate or nitrite ester is not an
+	 * ether, a nitrite is not a nitroso compound. */
+	EXPECT("ethyl nitrate", "CCO[N+](=O)[O-]", NULL, W("nitrate_ester", ANY, ANY, ANY, ANY, ANY, NULL, 1),
+	       W("nitro", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("ether", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("isoamyl nitrite", "CC(C)CCON=O", NULL, W("nitrite_ester", ANY, ANY, ANY, ANY, ANY, NULL, 1),
+	       W("nitroso", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("ether", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("RDX", "C1N([N+](=O)[O-])CN([N+](=O)[O-])CN1[N+](=O)[O-]", NULL,
+	       W("nitramine", ANY, ANY, ANY, ANY, ANY, NULL, 3), W("amine", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("potassium nitrate", "[K+].[O-][N+](=O)[O-]", NULL, W("nitrate_ion", ANY, ANY, ANY, ANY, ANY, NULL, 1),
+	       W("nitrate_ester", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("azobenzene", "c1ccc(N=Nc2ccccc2)cc1", NULL, W("azo", ANY, ANY, ANY, 2, ANY, NULL, 1),
+	       W("imine", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("benzene_ring", ANY, ANY, ANY, ANY, ANY, "mono", 2));
+	EXPECT("AIBN", "CC(C)(C#N)N=NC(C)(C)C#N", NULL, W("azo", ANY, ANY, ANY, 0, ANY, NULL, 1),
+	       W("nitrile", ANY, ANY, ANY, ANY, ANY, NULL, 2));
 	/* Five-membered N-heteroaromatics: the parent ring named from the
 	 * structure; n_h counts ring C-H (a tetrazole's one, a pyrrole's four). */
 	EXPECT("pyrrole", "c1cc[nH]c1", NULL, W("pyrrole_ring", ANY, ANY, 4, ANY, ANY, NULL, 1),
@@ -458,6 +472,12 @@ static void cautions(void **state)
 		{"phosgene", "ClC(Cl)=O", "phosgene"},
 		/* IARC group 2A (probable human carcinogen); from memory */
 		{"dimethyl sulfate", "COS(=O)(=O)OC", "dialkyl sulfate"},
+		/* RDX and the nitramines: high explosives (Urbanski, Chemistry and
+		 * Technology of Explosives; from memory) */
+		{"N-nitrodimethylamine", "CN(C)[N+](=O)[O-]", "nitramine"},
+		{"isoamyl nitrite", "CC(C)CCON=O", "alkyl nitrite"},
+		/* AIBN: a self-reactive substance in transport classes (from memory) */
+		{"azobisisobutyronitrile", "CC(C)(C#N)N=NC(C)(C)C#N", "aliphatic azo"},
 	};
 	for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
 		irr_inventory *inv = perceive(cases[i].smiles, NULL);
@@ -470,10 +490,12 @@ static void cautions(void **state)
 		irr_inventory_free(inv);
 	}
 	/* One nitro group, an ester, an amine, a detergent (sodium dodecyl
-	 * sulfate, not an alkylating agent): no caution. */
+	 * sulfate, not an alkylating agent), an aromatic azo dye parent
+	 * (azobenzene): no caution. */
 	static const char *const quiet[] = {"O=[N+]([O-])c1ccccc1", "CCOC(C)=O", "CCN",
 	                                    "CC(=O)Nc1ccc(O)cc1",
-	                                    "CCCCCCCCCCCCOS(=O)(=O)[O-].[Na+]"};
+	                                    "CCCCCCCCCCCCOS(=O)(=O)[O-].[Na+]",
+	                                    "c1ccc(N=Nc2ccccc2)cc1"};
 	for (size_t i = 0; i < sizeof quiet / sizeof quiet[0]; i++) {
 		irr_inventory *inv = perceive(quiet[i], NULL);
 		assert_int_equal(irr_inventory_caution_count(inv), 0);
