@@ -86,7 +86,7 @@ static const char *const caution_text[CAU_N] = {
 
 enum { CL_NONE = 0, CL_KETONE, CL_ALDEHYDE, CL_ACID, CL_CARBOXYLATE, CL_ESTER,
        CL_ANHYDRIDE, CL_AMIDE, CL_ACID_HALIDE, CL_UREA, CL_CARBAMATE, CL_CARBONATE,
-       CL_THIOESTER };
+       CL_THIOESTER, CL_THIOCARBAMATE, CL_THIOCARBONATE, CL_THIOACID };
 
 /* Atom flags: which group already holds the atom (so that, e.g., an ester
  * O is not also an ether O, an amide N not also an amine N). */
@@ -315,6 +315,18 @@ static int thio_carbon(const ctx *c, int i)
 	return 0;
 }
 
+/* Whether the S on carbonyl carbon i is an S-H (a thioacid R-C(=O)-SH). */
+static int thio_hydrogen(const ctx *c, int i)
+{
+	FOR_NB(c, i, e) {
+		int s = c->na[e];
+		if (EL(c, s) == 16 && c->no[e] == 1 && DEG(c, s) == 1 && HC(c, s) == 1 &&
+		    !c->at[s].charge)
+			return 1;
+	}
+	return 0;
+}
+
 static void find_carbonyls(ctx *c)
 {
 	for (size_t i = 0; i < c->n; i++) {
@@ -358,10 +370,17 @@ static void find_carbonyls(ctx *c)
 				nOther++;
 		}
 		int cl = CL_NONE;
-		if (nS == 1 && !nO && !nN && !nX && !nOther && nC + hC == 1 && thio_carbon(c, (int)i))
+		int only_s = nS == 1 && !nX && !nOther;
+		if (only_s && !nO && !nN && nC + hC == 1 && thio_carbon(c, (int)i))
 			cl = CL_THIOESTER; /* R-C(=O)-S-R', thiolactones too */
+		else if (only_s && nN == 1 && !nO && thio_carbon(c, (int)i))
+			cl = CL_THIOCARBAMATE; /* R2N-C(=O)-S-R' */
+		else if (only_s && nO == 1 && !nN && thio_carbon(c, (int)i))
+			cl = CL_THIOCARBONATE; /* R-O-C(=O)-S-R' */
+		else if (only_s && !nO && !nN && nC + hC == 1 && thio_hydrogen(c, (int)i))
+			cl = CL_THIOACID; /* R-C(=O)-SH */
 		else if (nS || nOther)
-			cl = CL_NONE; /* thioacids, thiocarbonates, thiocarbamates, acylsilanes...: no key */
+			cl = CL_NONE; /* thioacid salts, dithiocarbonates, acylsilanes...: no key */
 		else if (nX >= 1)
 			cl = CL_ACID_HALIDE; /* also chloroformates, carbamoyl chlorides, phosgene */
 		else if (nN >= 2)
@@ -689,12 +708,15 @@ static void perceive_carbonyls(ctx *c)
 				x->attrs.n_h = nh;
 			break;
 		}
-		case CL_CARBAMATE: {
-			int nn = hetero_of(c, i, 7), oo = hetero_of(c, i, 8);
-			x = emit(c, "carbamate", i, o, nn);
-			add_atom(c, x, oo);
+		case CL_CARBAMATE:
+		case CL_THIOCARBAMATE: {
+			/* R2N-C(=O)-O-R' or R2N-C(=O)-S-R': the N and the O or S are the group's. */
+			int thio = c->cls[i] == CL_THIOCARBAMATE;
+			int nn = hetero_of(c, i, 7), xo = hetero_of(c, i, thio ? 16 : 8);
+			x = emit(c, thio ? "thiocarbamate" : "carbamate", i, o, nn);
+			add_atom(c, x, xo);
 			claim(c, nn);
-			claim(c, oo);
+			claim(c, xo);
 			if (x)
 				x->attrs.n_h = HC(c, nn);
 			break;
@@ -713,6 +735,25 @@ static void perceive_carbonyls(ctx *c)
 				x->attrs.aryl = r >= 0 && (AROM(c, r) || vinyl_carbon(c, r));
 				x->attrs.ring_size = ring_with(c, i, sx);
 			}
+			break;
+		}
+		case CL_THIOCARBONATE: {
+			int oo = hetero_of(c, i, 8), sx = hetero_of(c, i, 16);
+			x = emit(c, "thiocarbonate", i, o, oo);
+			add_atom(c, x, sx);
+			claim(c, oo);
+			claim(c, sx);
+			if (x)
+				x->attrs.ring_size = ring_with(c, i, sx);
+			break;
+		}
+		case CL_THIOACID: {
+			/* Its S-H is the acid's own: no thiol beside it. */
+			int sx = hetero_of(c, i, 16);
+			x = emit(c, "thioacid", i, o, sx);
+			claim(c, sx);
+			if (x)
+				x->attrs.conjugated = carbonyl_conjugated(c, i);
 			break;
 		}
 		case CL_CARBONATE: {
@@ -1537,7 +1578,8 @@ static void perceive_heteroatoms(ctx *c)
 					nCl = j;
 			}
 			if (oxo == 0 && a->charge == 0) {
-				if (a->h_count > 0 && a->degree == 1 && nC == 1)
+				if (a->h_count > 0 && a->degree == 1 && nC == 1 &&
+				    !(c->flags[i] & F_CLAIMED))
 					emit(c, "thiol", i, c->na[c->ns[i]], -1);
 				else if (a->degree == 2 && nC == 2 && a->h_count == 0 &&
 				         !(c->flags[i] & F_CLAIMED))

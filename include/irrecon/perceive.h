@@ -18,7 +18,8 @@
  *             lactam [ring_size, n_h], imide [ring_size, n_h], urea [n_h],
  *             carbamate [n_h], carbonate [ring_size], thioester (R-C(=O)-S-R',
  *             thiolactones too) [conjugated, aryl = vinyl/aryl on the S side,
- *             ring_size]
+ *             ring_size], thioacid (R-C(=O)-SH) [conjugated], thiocarbamate
+ *             (R2N-C(=O)-S-R') [n_h], thiocarbonate (R-O-C(=O)-S-R') [ring_size]
  *   N:        amine [n_h = 2/1/0; aryl = N on an aromatic ring], ammonium [n_h =
  *             H on N+: 3/2/1/0; also an amine (aliphatic first, then aryl,
  *             then pyridine-type N) written with a separate HCl, HBr or HI

@@ -70,7 +70,8 @@ static void group_title(char *buf, size_t size, const irr_group *g, const irr_ta
 		ADD("%sring %d", n ? ", " : "", a->ring_size);
 	if (!strcmp(g->id, "amine") || !strcmp(g->id, "amide") || !strcmp(g->id, "ammonium") ||
 	    !strcmp(g->id, "lactam") || !strcmp(g->id, "imide") || !strcmp(g->id, "urea") ||
-	    !strcmp(g->id, "carbamate") || !strcmp(g->id, "sulfonamide"))
+	    !strcmp(g->id, "carbamate") || !strcmp(g->id, "thiocarbamate") ||
+	    !strcmp(g->id, "sulfonamide"))
 		ADD("%s%d N-H", n ? ", " : "", a->n_h);
 	if (a->aryl)
 		ADD("%saryl%s", n ? ", " : "", a->aryl > 1 ? " x2" : "");

@@ -21,7 +21,7 @@ DEFS = {
     "phenol": "[OX2H1]-c",
     "carboxylic_acid": "[CX3](=[OX1])[OX2H1]",
     "nitro": "[#6]-[N+](=O)[O-]",
-    "thiol": "[#6]-[SX2H1]",
+    "thiol": "[#6;!$([#6]=[O,S])]-[SX2H1]",
     "epoxide": "[OX2]1[#6][#6]1",
     "azide": "[N;X1,X2]=[N+]=[N-]",
     "isocyanate": "[NX2]=C=O",
@@ -51,6 +51,11 @@ DEFS = {
     # thiol ester R-C(=O)-S-R' (R = C or H on the acyl side); thioacids,
     # thiocarbonates and thiocarbamates have no C or H there
     "thioester": "[CX3;$([CH1]),$(C-[#6])](=[OX1])-[SX2]-[#6]",
+    # the other carbonyls on a neutral S: R-C(=O)-SH, R2N-C(=O)-S-R',
+    # R-O-C(=O)-S-R'
+    "thioacid": "[CX3;$([CH1]),$(C-[#6])](=[OX1])-[SX2H1;+0]",
+    "thiocarbamate": "[NX3]-[CX3](=[OX1])-[SX2]-[#6]",
+    "thiocarbonate": "[#6]-[OX2]-[CX3](=[OX1])-[SX2]-[#6]",
     # N-O and N=N groups: R-O-NO2, R2N-NO2, NO3-, R-O-N=O, C-N=N-C
     "nitrate_ester": "[#6][OX2][N+](=[OX1])[OX1-]",
     "nitramine": "[#7X3]-[N+](=[OX1])[OX1-]",

@@ -399,6 +399,24 @@ static void heteroatom_groups(void **state)
 	       W("peroxide", ANY, ANY, ANY, ANY, ANY, NULL, 1),
 	       W("alcohol_tertiary", ANY, ANY, ANY, ANY, ANY, NULL, 0));
 	EXPECT("ethanethiol", "CCS", NULL, W("thiol", ANY, ANY, ANY, ANY, ANY, NULL, 1));
+	/* Carbonyls on S: the S belongs to the carbonyl group (no thiol or sulfide
+	 * beside it); the N-H count of a thiocarbamate as for a carbamate. */
+	EXPECT("S-methyl thioacetate", "CC(=O)SC", NULL, W("thioester", ANY, ANY, ANY, ANY, ANY, NULL, 1),
+	       W("sulfide", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("ester", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("thioacetic acid", "CC(=O)S", NULL, W("thioacid", ANY, ANY, ANY, ANY, ANY, NULL, 1),
+	       W("thiol", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("thioester", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("thiobenzoic acid", "SC(=O)c1ccccc1", NULL, W("thioacid", 1, ANY, ANY, ANY, ANY, NULL, 1));
+	EXPECT("S-methyl N-methylthiocarbamate", "CSC(=O)NC", NULL,
+	       W("thiocarbamate", ANY, ANY, 1, ANY, ANY, NULL, 1), W("amide", ANY, ANY, ANY, ANY, ANY, NULL, 0),
+	       W("sulfide", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("amine", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("thiobencarb", "CCN(CC)C(=O)SCc1ccc(Cl)cc1", NULL,
+	       W("thiocarbamate", ANY, ANY, 0, ANY, ANY, NULL, 1), W("carbamate", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("O,S-dimethyl thiocarbonate", "COC(=O)SC", NULL,
+	       W("thiocarbonate", ANY, 0, ANY, ANY, ANY, NULL, 1), W("ether", ANY, ANY, ANY, ANY, ANY, NULL, 0),
+	       W("sulfide", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("carbonate", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("1,3-oxathiolan-2-one", "O=C1OCCS1", NULL, W("thiocarbonate", ANY, 5, ANY, ANY, ANY, NULL, 1));
+	EXPECT("potassium thioacetate (no key)", "CC(=O)[S-].[K+]", NULL,
+	       W("thioacid", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("thioester", ANY, ANY, ANY, ANY, ANY, NULL, 0));
 	EXPECT("dimethyl sulfide", "CSC", NULL, W("sulfide", ANY, ANY, ANY, ANY, ANY, NULL, 1));
 	EXPECT("dimethyl disulfide", "CSSC", NULL, W("disulfide", ANY, ANY, ANY, ANY, ANY, NULL, 1),
 	       W("sulfide", ANY, ANY, ANY, ANY, ANY, NULL, 0));
