@@ -12,6 +12,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include <strings.h>
+#include <sys/stat.h>
 #include <time.h>
 
 #include <cJSON.h>
@@ -31,10 +32,19 @@ typedef struct row {
 	irr_error *err;            /* failed rows only */
 } row;
 
+/* The folder of the last path checked: the rows of a manifest mostly name
+ * files in one or two folders, and realpath() costs a getcwd and a readlink
+ * per path component for every file. */
+typedef struct dir_memo {
+	char *dir;  /* folder part of the last path, as written */
+	int inside; /* its realpath lies inside base_real: 1, 0; -1 unknown */
+} dir_memo;
+
 struct irr_manifest {
 	char *name;
 	char *base_dir;
 	char *base_real;           /* realpath of base_dir, or NULL */
+	dir_memo *memo;            /* mutable behind a const manifest; NULL: none */
 	irr_manifest_format format;
 	row *rows;
 	size_t n, cap;
@@ -77,6 +87,9 @@ void irr_manifest_free(irr_manifest *m)
 	free(m->name);
 	free(m->base_dir);
 	free(m->base_real);
+	if (m->memo)
+		free(m->memo->dir);
+	free(m->memo);
 	free(m);
 }
 
@@ -492,6 +505,7 @@ int irr_manifest_read_memory(irr_manifest **out, const char *data, size_t len,
 		return irr_error_set(err, IRR_ENOMEM, name, 0, "out of memory");
 	}
 	m->base_real = realpath(m->base_dir, NULL);
+	m->memo = calloc(1, sizeof *m->memo); /* optional: without it every path is resolved whole */
 	m->format = format == IRR_MANIFEST_AUTO ? detect(name, data, len) : format;
 	rc = m->format == IRR_MANIFEST_JSONL ? read_jsonl(m, data, len, err) : read_csv(m, data, len, err);
 	if (rc == IRR_OK && m->n == 0)
@@ -550,6 +564,40 @@ static int has_dotdot(const char *p)
 	return 0;
 }
 
+static int under_base(const irr_manifest *m, const char *real)
+{
+	size_t bl = strlen(m->base_real);
+	return !strncmp(real, m->base_real, bl) &&
+	       (real[bl] == '/' || (bl == 1 && m->base_real[0] == '/'));
+}
+
+/* Whether file d resolves to a place inside the manifest's folder; 1 when it
+ * cannot be resolved (missing: the reader reports it). A file that is not
+ * itself a link lies where its folder lies, and the folder's answer is
+ * remembered from the row before. */
+static int path_inside(const irr_manifest *m, const char *d)
+{
+	const char *slash = strrchr(d, '/');
+	struct stat st;
+	if (m->memo && slash && slash > d && lstat(d, &st) == 0 && !S_ISLNK(st.st_mode)) {
+		size_t dl = (size_t)(slash - d);
+		dir_memo *mm = m->memo;
+		if (!mm->dir || strlen(mm->dir) != dl || memcmp(mm->dir, d, dl)) {
+			char *dir = dup_n(d, dl), *real = dir ? realpath(dir, NULL) : NULL;
+			free(mm->dir);
+			mm->dir = dir;
+			mm->inside = !real ? -1 : !strcmp(real, m->base_real) || under_base(m, real);
+			free(real);
+		}
+		if (mm->inside >= 0)
+			return mm->inside;
+	}
+	char *real = realpath(d, NULL);
+	int inside = !real || under_base(m, real);
+	free(real);
+	return inside;
+}
+
 int irr_manifest_resolve_path(char **out, const irr_manifest *m, long line,
                               const char *path, int allow_outside,
                               irr_error *err)
@@ -581,19 +629,10 @@ int irr_manifest_resolve_path(char **out, const irr_manifest *m, long line,
 		return irr_error_set(err, IRR_ENOMEM, m->name, 0, "out of memory");
 	/* A symbolic link inside the folder may still point out of it. Files
 	 * that do not exist are left to the reader, which names them. */
-	if (!allow_outside && m->base_real) {
-		char *real = realpath(d, NULL);
-		if (real) {
-			size_t bl = strlen(m->base_real);
-			int inside = !strncmp(real, m->base_real, bl) &&
-			             (real[bl] == '/' || (bl == 1 && m->base_real[0] == '/'));
-			free(real);
-			if (!inside) {
-				free(d);
-				return irr_error_set(err, IRR_EINPUT, m->name, line,
-				                     "path '%s' refused: a symbolic link leads outside the manifest's folder (--allow-outside permits it)", path);
-			}
-		}
+	if (!allow_outside && m->base_real && !path_inside(m, d)) {
+		free(d);
+		return irr_error_set(err, IRR_EINPUT, m->name, line,
+		                     "path '%s' refused: a symbolic link leads outside the manifest's folder (--allow-outside permits it)", path);
 	}
 	*out = d;
 	return IRR_OK;

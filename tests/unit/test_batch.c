@@ -202,6 +202,15 @@ static void make_tree(void)
 		assert_int_equal(symlink(target, p), 0);
 		snprintf(p, sizeof p, "%s/plate/inner.jdx", tmpdir);
 		assert_int_equal(symlink("in.jdx", p), 0);
+		/* A folder inside, and a folder link that leads out of the plate. */
+		snprintf(p, sizeof p, "%s/plate/sub", tmpdir);
+		assert_int_equal(mkdir(p, 0777), 0);
+		snprintf(p, sizeof p, "%s/plate/sub/a.jdx", tmpdir);
+		f = fopen(p, "w");
+		assert_non_null(f);
+		fclose(f);
+		snprintf(p, sizeof p, "%s/plate/away", tmpdir);
+		assert_int_equal(symlink(tmpdir, p), 0);
 	}
 }
 
@@ -226,6 +235,12 @@ static void paths_stay_inside_the_folder(void **state)
 		{"../secret.jdx", 0, "'..'"},
 		{"sub/../../secret.jdx", 0, "'..'"},
 		{"link.jdx", 0, "symbolic link"},
+		/* Rows alternate between folders: each answer is the folder's own. */
+		{"sub/a.jdx", 1, NULL},
+		{"away/secret.jdx", 0, "symbolic link"},
+		{"sub/a.jdx", 1, NULL},
+		{"away/plate/in.jdx", 1, NULL}, /* out through the link and back in */
+		{"away/secret.jdx", 0, "symbolic link"},
 		{"", 0, "empty"},
 	};
 	(void)state;
