@@ -21,6 +21,7 @@ static const char *const keys[][2] = {
 	{"ammonium", "ammonium"},
 	{"anhydride", "anhydride"},
 	{"azide", "azide"},
+	{"azine_ring", "azine ring"},
 	{"azo", "azo"},
 	{"azole_nh", "azole N-H"},
 	{"azole_ring", "azole ring"},

@@ -1284,6 +1284,25 @@ static int ring_in_order(const ctx *c, const int *ring, int size, int *order)
 	return 1;
 }
 
+/* The six-membered ring's parent name from its N positions (1,2 pyridazine;
+ * 1,3 pyrimidine; 1,4 pyrazine). */
+static const char *azine_kind(const ctx *c, const int *order)
+{
+	int pos[6], n = 0;
+	for (int q = 0; q < 6; q++)
+		if (EL(c, order[q]) == 7)
+			pos[n++] = q;
+	if (n == 2) {
+		int d = pos[1] - pos[0];
+		if (d > 3)
+			d = 6 - d;
+		return d == 1 ? "pyridazine" : d == 2 ? "pyrimidine" : "pyrazine";
+	}
+	if (n == 3)
+		return pos[1] - pos[0] == 2 && pos[2] - pos[1] == 2 ? "1,3,5-triazine" : "triazine";
+	return n == 4 ? "tetrazine" : "azine";
+}
+
 /* Whether the five-membered aromatic ring holding N-H atom `a` also holds
  * an N without H (an azole rather than a pyrrole). */
 static int ring_has_acceptor_n(const ctx *c, int a)
@@ -1399,6 +1418,22 @@ static void perceive_rings(ctx *c)
 			for (int q = 0; q < 6; q++)
 				add_atom(c, x, order[q]);
 			set_pattern(x, pat);
+		} else if (size == 6 && nN_py > 0 && nN >= 2) {
+			/* Diazines and triazines: their ring modes sit lower than a
+			 * pyridine's, and a 1,3,5-triazine adds its strong ring bend. */
+			int order[6];
+			if (!ring_in_order(c, ring, 6, order))
+				continue;
+			instance *x = new_instance(c, "azine_ring");
+			int ch = 0;
+			for (int q = 0; q < 6; q++) {
+				add_atom(c, x, order[q]);
+				ch += EL(c, order[q]) == 6 && HC(c, order[q]) > 0;
+			}
+			if (x) {
+				x->attrs.n_h = ch;
+				set_pattern(x, azine_kind(c, order));
+			}
 		} else if (size == 6 && nN_py > 0) {
 			instance *x = new_instance(c, "pyridine_ring");
 			for (int q = 0; q < size; q++)

@@ -49,7 +49,8 @@ static const char *const patterns[] = {
 	"other", "vinyl", "vinylidene", "cis", "trans", "trisubstituted",
 	"tetrasubstituted", "unknown", "unsubstituted", "imidazole", "pyrazole",
 	"triazole", "tetrazole", "oxazole", "isoxazole", "oxadiazole", "thiazole",
-	"isothiazole", "thiadiazole", "azole", "", NULL
+	"isothiazole", "thiadiazole", "azole", "pyridazine", "pyrimidine", "pyrazine",
+	"1,3,5-triazine", "triazine", "tetrazine", "azine", "", NULL
 };
 
 /* --- arena: every string and array of a table set lives here ----------- */

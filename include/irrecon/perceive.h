@@ -38,7 +38,10 @@
  *             1,3,5 | penta_hexa | other (tetrasubstituted) | unsubstituted;
  *             one per six-membered all-carbon
  *             aromatic ring; fused rings count their fusion atoms as
- *             substituted], pyridine_ring (pyridines, diazines), pyrrole_nh
+ *             substituted], pyridine_ring (one ring N), azine_ring (two or
+ *             more ring N) [pattern = pyridazine | pyrimidine | pyrazine |
+ *             1,3,5-triazine | triazine | tetrazine | azine; n_h = ring C-H
+ *             count], pyrrole_nh
  *             (pyrrole/indole N-H), azole_nh (N-H in a ring that also has an
  *             N without H: imidazole, pyrazole, triazole, tetrazole), furan_ring,
  *             thiophene_ring,

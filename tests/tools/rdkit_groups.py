@@ -71,6 +71,26 @@ DEFS = {
 # also has an N without H (imidazole, pyrazole, triazole, tetrazole), else
 # pyrrole_nh.
 FIVE_RING_KEYS = ("pyrrole_ring", "azole_ring", "pyrrole_nh", "azole_nh")
+# Six-membered aromatic rings with an N that has no H and two neighbours:
+# pyridine_ring with one ring N, azine_ring with two or more (diazines,
+# triazines).
+SIX_RING_KEYS = ("pyridine_ring", "azine_ring")
+
+
+def six_rings(mol):
+    n_of = dict.fromkeys(SIX_RING_KEYS, 0)
+    for r in Chem.GetSSSR(mol):
+        if len(r) != 6:
+            continue
+        atoms = [mol.GetAtomWithIdx(i) for i in r]
+        if not all(a.GetIsAromatic() for a in atoms):
+            continue
+        n = sum(a.GetAtomicNum() == 7 for a in atoms)
+        if not any(a.GetAtomicNum() == 7 and a.GetTotalNumHs() == 0 and a.GetDegree() == 2
+                   for a in atoms):
+            continue
+        n_of["azine_ring" if n >= 2 else "pyridine_ring"] += 1
+    return n_of
 
 
 def five_rings(mol):
@@ -99,7 +119,7 @@ def five_rings(mol):
 def main():
     pats = {k: Chem.MolFromSmarts(v) for k, v in DEFS.items()}
     pats["benzene_ring"] = None
-    for key in FIVE_RING_KEYS:
+    for key in FIVE_RING_KEYS + SIX_RING_KEYS:
         pats[key] = None
     for line in sys.stdin:
         parts = line.rstrip("\n").split("\t")
@@ -123,6 +143,8 @@ def main():
                     mol.GetAtomWithIdx(i).GetAtomicNum() == 6 for i in r))
             elif key in FIVE_RING_KEYS:
                 n = five_rings(mol)[key]
+            elif key in SIX_RING_KEYS:
+                n = six_rings(mol)[key]
             else:
                 n = len(mol.GetSubstructMatches(pat))
             if n != ours.get(key, 0):

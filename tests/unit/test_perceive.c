@@ -322,6 +322,15 @@ static void carbon_skeleton(void **state)
 	       W("benzene_ring", ANY, ANY, ANY, ANY, ANY, "ortho", 2));
 	EXPECT("pyridine", "c1ccncc1", NULL, W("pyridine_ring", ANY, ANY, ANY, ANY, ANY, NULL, 1),
 	       W("benzene_ring", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	/* Rings with two or more N: the parent named from the N positions. */
+	EXPECT("pyrimidine", "c1cncnc1", NULL, W("azine_ring", ANY, ANY, 4, ANY, ANY, "pyrimidine", 1),
+	       W("pyridine_ring", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("pyrazine", "c1cnccn1", NULL, W("azine_ring", ANY, ANY, 4, ANY, ANY, "pyrazine", 1));
+	EXPECT("pyridazine", "c1ccnnc1", NULL, W("azine_ring", ANY, ANY, 4, ANY, ANY, "pyridazine", 1));
+	EXPECT("melamine", "Nc1nc(N)nc(N)n1", NULL,
+	       W("azine_ring", ANY, ANY, 0, ANY, ANY, "1,3,5-triazine", 1), W("amine", ANY, ANY, 2, 1, ANY, NULL, 3));
+	EXPECT("1,2,4-triazine", "n1ncncc1", NULL, W("azine_ring", ANY, ANY, 3, ANY, ANY, "triazine", 1));
+	EXPECT("pyridine (one N)", "c1ccncc1", NULL, W("azine_ring", ANY, ANY, ANY, ANY, ANY, NULL, 0));
 	EXPECT("indole", "c1ccc2[nH]ccc2c1", NULL, W("pyrrole_nh", ANY, ANY, ANY, ANY, ANY, NULL, 1));
 	EXPECT("furan", "c1ccoc1", NULL, W("furan_ring", ANY, ANY, ANY, ANY, ANY, NULL, 1),
 	       W("ether", ANY, ANY, ANY, ANY, ANY, NULL, 0));
