@@ -1284,6 +1284,23 @@ static int ring_in_order(const ctx *c, const int *ring, int size, int *order)
 	return 1;
 }
 
+/* A heteroaromatic ring group over the ring's atoms: n_h is its ring C-H
+ * count (the C-H bands go when it is 0), pattern the parent's name. */
+static void ring_group(ctx *c, const char *id, const int *atoms, int size, const char *kind)
+{
+	instance *x = new_instance(c, id);
+	int ch = 0;
+	for (int q = 0; q < size; q++) {
+		add_atom(c, x, atoms[q]);
+		ch += EL(c, atoms[q]) == 6 && HC(c, atoms[q]) > 0;
+	}
+	if (x) {
+		x->attrs.n_h = ch;
+		if (kind)
+			set_pattern(x, kind);
+	}
+}
+
 /* The six-membered ring's parent name from its N positions (1,2 pyridazine;
  * 1,3 pyrimidine; 1,4 pyrazine). */
 static const char *azine_kind(const ctx *c, const int *order)
@@ -1422,18 +1439,8 @@ static void perceive_rings(ctx *c)
 			/* Diazines and triazines: their ring modes sit lower than a
 			 * pyridine's, and a 1,3,5-triazine adds its strong ring bend. */
 			int order[6];
-			if (!ring_in_order(c, ring, 6, order))
-				continue;
-			instance *x = new_instance(c, "azine_ring");
-			int ch = 0;
-			for (int q = 0; q < 6; q++) {
-				add_atom(c, x, order[q]);
-				ch += EL(c, order[q]) == 6 && HC(c, order[q]) > 0;
-			}
-			if (x) {
-				x->attrs.n_h = ch;
-				set_pattern(x, azine_kind(c, order));
-			}
+			if (ring_in_order(c, ring, 6, order))
+				ring_group(c, "azine_ring", order, 6, azine_kind(c, order));
 		} else if (size == 6 && nN_py > 0) {
 			instance *x = new_instance(c, "pyridine_ring");
 			for (int q = 0; q < size; q++)
@@ -1441,18 +1448,8 @@ static void perceive_rings(ctx *c)
 		} else if (size == 5 && nN >= 1 && nN + nO + nS >= 2) {
 			/* Before furan/thiophene: oxazole and thiazole rings have their C=N. */
 			int order[5];
-			if (!ring_in_order(c, ring, 5, order))
-				continue;
-			instance *x = new_instance(c, "azole_ring");
-			int ch = 0;
-			for (int q = 0; q < 5; q++) {
-				add_atom(c, x, order[q]);
-				ch += EL(c, order[q]) == 6 && HC(c, order[q]) > 0;
-			}
-			if (x) {
-				x->attrs.n_h = ch;
-				set_pattern(x, azole_kind(c, order));
-			}
+			if (ring_in_order(c, ring, 5, order))
+				ring_group(c, "azole_ring", order, 5, azole_kind(c, order));
 		} else if (size == 5 && nO > 0) {
 			instance *x = new_instance(c, "furan_ring");
 			for (int q = 0; q < size; q++)
@@ -1462,14 +1459,7 @@ static void perceive_rings(ctx *c)
 			for (int q = 0; q < size; q++)
 				add_atom(c, x, ring[q]);
 		} else if (size == 5 && nN == 1 && nC == 4) {
-			instance *x = new_instance(c, "pyrrole_ring");
-			int ch = 0;
-			for (int q = 0; q < size; q++) {
-				add_atom(c, x, ring[q]);
-				ch += EL(c, ring[q]) == 6 && HC(c, ring[q]) > 0;
-			}
-			if (x)
-				x->attrs.n_h = ch;
+			ring_group(c, "pyrrole_ring", ring, 5, NULL);
 		}
 	}
 	/* A ring N-H next to (or across from) a ring N without H: the N-H...N

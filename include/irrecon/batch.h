@@ -76,7 +76,9 @@ irr_manifest_format irr_manifest_detected_format(const irr_manifest *m);
 /* Resolves a path written in a manifest row against `base_dir`. Unless
  * `allow_outside`, an absolute path, a ".." component, or a file whose real
  * location (symbolic links followed) is not inside base_dir is refused with
- * IRR_EINPUT naming the manifest and line. Caller owns *out (free()). */
+ * IRR_EINPUT naming the manifest and line. Caller owns *out (free()). The
+ * manifest remembers the last folder it resolved, so calls on one manifest
+ * must not run in parallel threads. */
 int irr_manifest_resolve_path(char **out, const irr_manifest *m, long line,
                               const char *path, int allow_outside,
                               irr_error *err);
