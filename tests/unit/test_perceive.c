@@ -351,7 +351,9 @@ static void carbon_skeleton(void **state)
 	EXPECT("AIBN", "CC(C)(C#N)N=NC(C)(C)C#N", NULL, W("azo", ANY, ANY, ANY, 0, ANY, NULL, 1),
 	       W("nitrile", ANY, ANY, ANY, ANY, ANY, NULL, 2));
 	/* Five-membered N-heteroaromatics: the parent ring named from the
-	 * structure; n_h counts ring C-H (a tetrazole's one, a pyrrole's four). */
+	 * structure; n_h counts ring C-H (a pyrrole's four, 5-methyltetrazole's
+	 * none). Ring classes as in Joule & Mills, Heterocyclic Chemistry (from
+	 * memory). */
 	EXPECT("pyrrole", "c1cc[nH]c1", NULL, W("pyrrole_ring", ANY, ANY, 4, ANY, ANY, NULL, 1),
 	       W("pyrrole_nh", ANY, ANY, ANY, ANY, ANY, NULL, 1), W("azole_ring", ANY, ANY, ANY, ANY, ANY, NULL, 0));
 	EXPECT("1-methylpyrrole", "Cn1cccc1", NULL, W("pyrrole_ring", ANY, ANY, 4, ANY, ANY, NULL, 1),
@@ -502,6 +504,7 @@ static void cautions(void **state)
 		/* RDX and the nitramines: high explosives (Urbanski, Chemistry and
 		 * Technology of Explosives; from memory) */
 		{"N-nitrodimethylamine", "CN(C)[N+](=O)[O-]", "nitramine"},
+		/* amyl nitrite: an inhaled vasodilator, highly flammable (from memory) */
 		{"isoamyl nitrite", "CC(C)CCON=O", "alkyl nitrite"},
 		/* AIBN: a self-reactive substance in transport classes (from memory) */
 		{"azobisisobutyronitrile", "CC(C)(C#N)N=NC(C)(C)C#N", "aliphatic azo"},
