@@ -580,10 +580,13 @@ static void perceive_carbonyls(ctx *c)
 						x->attrs.aryl = 1;
 			}
 			break;
-		case CL_ACID: {
-			int oh = hetero_of(c, i, 8);
-			x = emit(c, "carboxylic_acid", i, o, oh);
-			claim(c, oh);
+		case CL_ACID:
+		case CL_THIOACID: {
+			/* The O-H or S-H is the acid's own: no alcohol or thiol beside it. */
+			int thio = c->cls[i] == CL_THIOACID;
+			int xh = hetero_of(c, i, thio ? 16 : 8);
+			x = emit(c, thio ? "thioacid" : "carboxylic_acid", i, o, xh);
+			claim(c, xh);
 			if (x)
 				x->attrs.conjugated = carbonyl_conjugated(c, i);
 			break;
@@ -745,15 +748,6 @@ static void perceive_carbonyls(ctx *c)
 			claim(c, sx);
 			if (x)
 				x->attrs.ring_size = ring_with(c, i, sx);
-			break;
-		}
-		case CL_THIOACID: {
-			/* Its S-H is the acid's own: no thiol beside it. */
-			int sx = hetero_of(c, i, 16);
-			x = emit(c, "thioacid", i, o, sx);
-			claim(c, sx);
-			if (x)
-				x->attrs.conjugated = carbonyl_conjugated(c, i);
 			break;
 		}
 		case CL_CARBONATE: {
