@@ -878,6 +878,21 @@ static void perceive_nitrogen(ctx *c)
 			claim(c, i);
 			continue;
 		}
+		/* N-oxides: an amine oxide (R3N+-O-, NMO) or an aromatic N-oxide
+		 * (pyridine N-oxide); not a nitrone, whose N+ is also double-bonded. */
+		if (oxo == 1 && a->charge == 1 &&
+		    ((a->degree == 4 && !a->aromatic) || (a->degree == 3 && a->aromatic))) {
+			int ox = -1;
+			FOR_NB(c, i, e)
+				if (is_oxo(c, i, c->na[e], c->no[e], 8))
+					ox = c->na[e];
+			instance *x = emit(c, "n_oxide", i, ox, -1);
+			if (x)
+				x->attrs.aryl = a->aromatic;
+			claim(c, ox);
+			claim(c, i);
+			continue;
+		}
 		/* Nitrate ion (NO3-, written with N+ and two O-). */
 		if (oxo == 3 && a->degree == 3) {
 			emit(c, "nitrate_ion", i, -1, -1);
@@ -1374,7 +1389,9 @@ static void perceive_rings(ctx *c)
 			nN += z == 7;
 			nO += z == 8;
 			nS += z == 16;
-			if (z == 7 && HC(c, a) == 0 && DEG(c, a) == 2)
+			/* Pyridine-type: no H, two ring bonds; its N-oxide too. */
+			if (z == 7 && HC(c, a) == 0 &&
+			    (DEG(c, a) == 2 || (DEG(c, a) == 3 && c->at[a].charge == 1 && oxo_count(c, a) == 1)))
 				nN_py++;
 		}
 		if (!all_arom)
@@ -1569,6 +1586,21 @@ static void perceive_alkyl(ctx *c)
 
 /* ---------------------------------------------------------------- S, P, Si, B */
 
+/* P or Si carrying aromatic rings (PPh3, Ph3PO, Wittig salts, TBDPS): one
+ * instance per P or Si, with aryl = how many rings it carries. The
+ * phenyl's X-sensitive ring modes near 1435 and 1110 are this group's. */
+static void aryl_on(ctx *c, int i, const char *id)
+{
+	int n = 0;
+	FOR_NB(c, i, e)
+		n += EL(c, c->na[e]) == 6 && AROM(c, c->na[e]);
+	if (n) {
+		instance *x = emit(c, id, i, -1, -1);
+		if (x)
+			x->attrs.aryl = n;
+	}
+}
+
 static void perceive_heteroatoms(ctx *c)
 {
 	for (size_t ii = 0; ii < c->n; ii++) {
@@ -1665,9 +1697,11 @@ static void perceive_heteroatoms(ctx *c)
 				emit(c, "phosphine_oxide", i, -1, -1);
 			if (a->h_count > 0)
 				emit(c, "p_h", i, -1, -1);
+			aryl_on(c, i, "p_aryl");
 		} else if (z == 14) {
 			if (a->h_count > 0)
 				emit(c, "si_h", i, -1, -1);
+			aryl_on(c, i, "si_aryl");
 			instance *x = NULL;
 			FOR_NB(c, i, e) {
 				int j = c->na[e];

@@ -25,7 +25,8 @@
  *             then pyridine-type N) written with a separate HCl, HBr or HI
  *             component, e.g. "CCN.Cl"], imine, oxime, hydrazone, nitro [aryl], nitroso,
  *             nitrate_ester (R-O-NO2), nitrite_ester (R-O-N=O), nitramine
- *             (N-NO2), nitrate_ion, azo (C-N=N-C, neither N aromatic) [aryl =
+ *             (N-NO2), nitrate_ion, n_oxide (R3N+-O-, aromatic N-oxides)
+ *             [aryl], azo (C-N=N-C, neither N aromatic) [aryl =
  *             aromatic C on the N: 0/1/2], azide, diazo, isocyanate,
  *             isothiocyanate, carbodiimide, nitrile [conjugated], isonitrile
  *   C-C:      alkyne_terminal, alkyne_internal,
@@ -58,8 +59,11 @@
  *             sulfonate_ester, sulfonic_acid, sulfonate (the anion),
  *             sulfonyl_chloride, thiocarbonyl, sulfate_ester ((RO)2SO2, with a
  *             caution), alkyl_sulfate (ROSO3- or ROSO3H)
- *   P:        phosphine, phosphine_oxide, phosphate, phosphonate, p_h
- *   Si, B:    si_h, si_methyl, siloxane (Si-O-Si or Si-O-C), boronic_acid,
+ *   P:        phosphine, phosphine_oxide, phosphate, phosphonate, p_h,
+ *             p_aryl (a P carrying aromatic rings: PPh3, Ph3PO, Wittig salts)
+ *             [aryl = how many]
+ *   Si, B:    si_h, si_methyl, si_aryl [aryl = how many], siloxane (Si-O-Si or
+ *             Si-O-C), boronic_acid,
  *             boronic_ester
  *   halogen:  c_f, c_cl, c_br, c_i [aryl]
  *   other:    water (a water molecule as a component, e.g. a hydrate)

@@ -73,8 +73,10 @@ static void group_title(char *buf, size_t size, const irr_group *g, const irr_ta
 	    !strcmp(g->id, "carbamate") || !strcmp(g->id, "thiocarbamate") ||
 	    !strcmp(g->id, "sulfonamide"))
 		ADD("%s%d N-H", n ? ", " : "", a->n_h);
-	if (a->aryl)
-		ADD("%saryl%s", n ? ", " : "", a->aryl > 1 ? " x2" : "");
+	if (a->aryl == 1)
+		ADD("%saryl", n ? ", " : "");
+	else if (a->aryl > 1)
+		ADD("%saryl x%d", n ? ", " : "", a->aryl);
 	if (a->hbond_intra)
 		ADD("%sinternal H-bond", n ? ", " : "");
 #undef ADD

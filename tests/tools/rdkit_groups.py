@@ -62,6 +62,11 @@ DEFS = {
     "nitrate_ion": "[N+X3](=[OX1])([OX1-])[OX1-]",
     "nitrite_ester": "[#6][OX2][NX2]=[OX1]",
     "azo": "[#6]-[NX2;!a;+0]=[NX2;!a;+0]-[#6]",
+    # amine oxides and aromatic N-oxides (not nitro, not nitrones)
+    "n_oxide": "[$([NX4+]),$([n+X3])]-[OX1-]",
+    # one per P or Si atom that carries an aromatic ring
+    "p_aryl": "[#15;$([#15]-c)]",
+    "si_aryl": "[Si;$([Si]-c)]",
 }
 
 # Five-membered aromatic rings of RDKit's SSSR, by their ring atoms
@@ -71,7 +76,8 @@ DEFS = {
 # also has an N without H (imidazole, pyrazole, triazole, tetrazole), else
 # pyrrole_nh.
 FIVE_RING_KEYS = ("pyrrole_ring", "azole_ring", "pyrrole_nh", "azole_nh")
-# Six-membered aromatic rings with an N that has no H and two neighbours:
+# Six-membered aromatic rings with an N that has no H and two neighbours
+# (or a third, the O- of an N-oxide):
 # pyridine_ring with one ring N, azine_ring with two or more (diazines,
 # triazines).
 SIX_RING_KEYS = ("pyridine_ring", "azine_ring")
@@ -86,7 +92,10 @@ def six_rings(mol):
         if not all(a.GetIsAromatic() for a in atoms):
             continue
         n = sum(a.GetAtomicNum() == 7 for a in atoms)
-        if not any(a.GetAtomicNum() == 7 and a.GetTotalNumHs() == 0 and a.GetDegree() == 2
+        if not any(a.GetAtomicNum() == 7 and a.GetTotalNumHs() == 0 and
+                   (a.GetDegree() == 2 or (a.GetDegree() == 3 and a.GetFormalCharge() == 1 and
+                                           any(b.GetAtomicNum() == 8 and b.GetFormalCharge() == -1
+                                               for b in a.GetNeighbors())))
                    for a in atoms):
             continue
         n_of["azine_ring" if n >= 2 else "pyridine_ring"] += 1

@@ -449,7 +449,20 @@ static void heteroatom_groups(void **state)
 	EXPECT("triphenylphosphine", "c1ccc(P(c2ccccc2)c2ccccc2)cc1", NULL,
 	       W("phosphine", ANY, ANY, ANY, ANY, ANY, NULL, 1));
 	EXPECT("triphenylphosphine oxide", "O=P(c1ccccc1)(c1ccccc1)c1ccccc1", NULL,
-	       W("phosphine_oxide", ANY, ANY, ANY, ANY, ANY, NULL, 1));
+	       W("phosphine_oxide", ANY, ANY, ANY, ANY, ANY, NULL, 1),
+	       W("p_aryl", ANY, ANY, ANY, 3, ANY, NULL, 1));
+	EXPECT("methyltriphenylphosphonium bromide", "c1ccc([P+](c2ccccc2)(c2ccccc2)C)cc1.[Br-]", NULL,
+	       W("p_aryl", ANY, ANY, ANY, 3, ANY, NULL, 1), W("phosphine", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("TBDPS methyl ether", "CC(C)(C)[Si](OC)(c1ccccc1)c1ccccc1", NULL,
+	       W("si_aryl", ANY, ANY, ANY, 2, ANY, NULL, 1), W("siloxane", ANY, ANY, ANY, ANY, ANY, NULL, 1));
+	/* N-oxides: the O- is the N-oxide's, the N is no ammonium. */
+	EXPECT("N-methylmorpholine N-oxide", "C[N+]1([O-])CCOCC1", NULL,
+	       W("n_oxide", ANY, ANY, ANY, 0, ANY, NULL, 1), W("ammonium", ANY, ANY, ANY, ANY, ANY, NULL, 0),
+	       W("ether", ANY, ANY, ANY, ANY, ANY, NULL, 1));
+	EXPECT("pyridine N-oxide", "[O-][n+]1ccccc1", NULL, W("n_oxide", ANY, ANY, ANY, 1, ANY, NULL, 1),
+	       W("pyridine_ring", ANY, ANY, ANY, ANY, ANY, NULL, 1));
+	EXPECT("nitromethane (not an N-oxide)", "C[N+](=O)[O-]", NULL,
+	       W("n_oxide", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("nitro", ANY, ANY, ANY, ANY, ANY, NULL, 1));
 	EXPECT("trimethyl phosphate", "COP(=O)(OC)OC", NULL,
 	       W("phosphate", ANY, ANY, ANY, ANY, ANY, NULL, 1), W("ether", ANY, ANY, ANY, ANY, ANY, NULL, 0));
 	EXPECT("dimethyl methylphosphonate", "COP(=O)(C)OC", NULL,
