@@ -86,7 +86,7 @@ static const char *const caution_text[CAU_N] = {
 
 enum { CL_NONE = 0, CL_KETONE, CL_ALDEHYDE, CL_ACID, CL_CARBOXYLATE, CL_ESTER,
        CL_ANHYDRIDE, CL_AMIDE, CL_ACID_HALIDE, CL_UREA, CL_CARBAMATE, CL_CARBONATE,
-       CL_THIOESTER, CL_THIOCARBAMATE, CL_THIOCARBONATE, CL_THIOACID };
+       CL_THIOESTER, CL_THIOCARBAMATE, CL_THIOCARBONATE, CL_THIOACID, CL_CARBONATE_ION };
 
 /* Atom flags: which group already holds the atom (so that, e.g., an ester
  * O is not also an ether O, an amide N not also an amine N). */
@@ -315,6 +315,15 @@ static int thio_carbon(const ctx *c, int i)
 	return 0;
 }
 
+/* Whether carbon j is a C#N carbon (a nitrile, thiocyanate or cyanate C). */
+static int cyano_carbon(const ctx *c, int j)
+{
+	FOR_NB(c, j, e)
+		if (c->no[e] == 3 && EL(c, c->na[e]) == 7 && DEG(c, c->na[e]) == 1)
+			return 1;
+	return 0;
+}
+
 /* Whether the S on carbonyl carbon i is an S-H (a thioacid R-C(=O)-SH). */
 static int thio_hydrogen(const ctx *c, int i)
 {
@@ -398,12 +407,31 @@ static void find_carbonyls(ctx *c)
 		c->cls[i] = cl;
 	}
 	/* Dicarbonates (Boc2O) and carbonic-carboxylic anhydrides: an O that
-	 * bridges two carbonyl carbons makes an anhydride (two coupled C=O). */
+	 * bridges two carbonyl carbons makes an anhydride (two coupled C=O).
+	 * With both O anionic (or on a metal) it is the carbonate ion of K2CO3;
+	 * with one of them O-H, a hydrogencarbonate, which has no key. */
 	for (size_t i = 0; i < c->n; i++) {
 		if (c->cls[i] != CL_CARBONATE)
 			continue;
-		if (bridge_o(c, (int)i) >= 0)
+		if (bridge_o(c, (int)i) >= 0) {
 			c->cls[i] = CL_ANHYDRIDE;
+			continue;
+		}
+		int ionic = 0, oh = 0;
+		FOR_NB(c, (int)i, e) {
+			int x = c->na[e], other = -1;
+			if (x == c->carbonyl_o[i] || EL(c, x) != 8)
+				continue;
+			FOR_NB(c, x, f)
+				if (c->na[f] != (int)i)
+					other = c->na[f];
+			ionic += c->at[x].charge < 0 || (other >= 0 && is_metal(EL(c, other)));
+			oh += HC(c, x) > 0;
+		}
+		if (ionic == 2)
+			c->cls[i] = CL_CARBONATE_ION;
+		else if (ionic && oh)
+			c->cls[i] = CL_NONE;
 	}
 	/* Refine the C(=O)O family by what the single-bonded O carries. */
 	for (size_t i = 0; i < c->n; i++) {
@@ -748,6 +776,12 @@ static void perceive_carbonyls(ctx *c)
 			claim(c, sx);
 			if (x)
 				x->attrs.ring_size = ring_with(c, i, sx);
+			break;
+		}
+		case CL_CARBONATE_ION: {
+			x = emit(c, "carbonate_ion", i, o, -1);
+			FOR_NB(c, i, e)
+				claim(c, c->na[e]);
 			break;
 		}
 		case CL_CARBONATE: {
@@ -1115,11 +1149,31 @@ static void perceive_multiple_bonds(ctx *c)
 					emit(c, "isonitrile", cc, other, -1);
 					c->caution[CAU_ISONITRILE] = 1;
 				} else if (DEG(c, other) == 1 && c->at[other].charge == 0) {
-					instance *x = emit(c, "nitrile", cc, other, -1);
-					if (x)
-						x->attrs.conjugated = conjugated_at(c, cc, other, 0);
-					if (DEG(c, cc) == 1 && (HC(c, cc) > 0 || c->at[cc].charge < 0))
+					/* C#N on S or O: a thiocyanate (R-S-CN, SCN-) or a
+					 * cyanate ester (R-O-CN), whose C#N bands lie apart
+					 * from a nitrile's; the S or O is theirs. */
+					int het = -1;
+					FOR_NB(c, cc, e)
+						if (c->na[e] != other && (EL(c, c->na[e]) == 16 || EL(c, c->na[e]) == 8))
+							het = c->na[e];
+					const char *id = "nitrile";
+					int cyanide = DEG(c, cc) == 1 && (HC(c, cc) > 0 || c->at[cc].charge < 0);
+					if (cyanide)
+						id = "cyanide"; /* HCN or CN-: C#N near 2080, not 2250 */
+					else if (het >= 0 && EL(c, het) == 16)
+						id = DEG(c, het) == 1 && c->at[het].charge < 0 ? "thiocyanate_ion"
+						     : DEG(c, het) == 2                        ? "thiocyanate"
+						                                               : "nitrile";
+					else if (het >= 0 && DEG(c, het) == 2 && c->at[het].charge == 0)
+						id = "cyanate_ester";
+					int nitrile = !strcmp(id, "nitrile");
+					instance *x = emit(c, id, cc, other, nitrile || cyanide ? -1 : het);
+					if (cyanide)
 						c->caution[CAU_CYANIDE] = 1;
+					else if (!nitrile)
+						claim(c, het);
+					else if (x)
+						x->attrs.conjugated = conjugated_at(c, cc, other, 0);
 				}
 			} else if (EL(c, other) == 6) {
 				const char *id = HC(c, p) > 0 || HC(c, q) > 0 ? "alkyne_terminal"
@@ -1608,17 +1662,18 @@ static void perceive_heteroatoms(ctx *c)
 		const irr_atom *a = &c->at[i];
 		if (z == 16 && !a->aromatic) {
 			int oxo = oxo_count(c, i), nC = 0, nN = -1, nOH = -1, nOR = -1, nOm = -1,
-			    nCl = -1, nOR2 = -1;
+			    nCl = -1, nOR2 = -1, nF = -1, n_ominus = 0, cyano = 0;
 			FOR_NB(c, i, e) {
 				int j = c->na[e], zj = EL(c, j);
 				if (is_oxo(c, i, j, c->no[e], 8))
 					continue;
-				if (zj == 6)
+				if (zj == 6) {
 					nC++;
-				else if (zj == 7)
+					cyano += cyano_carbon(c, j);
+				} else if (zj == 7)
 					nN = j;
 				else if (zj == 8 && c->at[j].charge < 0)
-					nOm = j;
+					nOm = j, n_ominus++;
 				else if (zj == 8 && HC(c, j) > 0)
 					nOH = j;
 				else if (zj == 8 && nOR >= 0)
@@ -1627,14 +1682,16 @@ static void perceive_heteroatoms(ctx *c)
 					nOR = j;
 				else if (zj == 17)
 					nCl = j;
+				else if (zj == 9)
+					nF = j;
 			}
 			if (oxo == 0 && a->charge == 0) {
 				if (a->h_count > 0 && a->degree == 1 && nC == 1 &&
 				    !(c->flags[i] & F_CLAIMED))
 					emit(c, "thiol", i, c->na[c->ns[i]], -1);
-				else if (a->degree == 2 && nC == 2 && a->h_count == 0 &&
+				else if (a->degree == 2 && nC == 2 && a->h_count == 0 && !cyano &&
 				         !(c->flags[i] & F_CLAIMED))
-					emit(c, "sulfide", i, -1, -1);
+					emit(c, "sulfide", i, -1, -1); /* R-S-C#N: a thiocyanate, below */
 			} else if (oxo == 1 && a->degree == 3 && nC == 2) {
 				emit(c, "sulfoxide", i, -1, -1);
 			} else if (oxo == 2 && a->degree == 4) {
@@ -1658,6 +1715,14 @@ static void perceive_heteroatoms(ctx *c)
 				} else if (nC == 1 && nCl >= 0) {
 					x = emit(c, "sulfonyl_chloride", i, nCl, -1);
 					claim(c, nCl);
+				} else if (nC == 1 && nF >= 0) {
+					x = emit(c, "sulfonyl_fluoride", i, nF, -1);
+					claim(c, nF);
+				} else if (nC == 0 && n_ominus == 2 && nOR < 0 && nOH < 0) {
+					/* SO4 2- (Na2SO4, MgSO4: drying agents). */
+					x = emit(c, "sulfate_ion", i, -1, -1);
+					FOR_NB(c, i, e)
+						claim(c, c->na[e]);
 				} else if (nC == 0 && nOR >= 0 && nOR2 >= 0) {
 					/* (RO)2SO2: the two ester O are the sulfate's,
 					 * not ethers. */

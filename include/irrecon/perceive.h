@@ -16,7 +16,8 @@
  *             formate, anhydride [ring_size, conjugated], acid_halide [conjugated],
  *             amide [n_h = 2 primary, 1 secondary, 0 tertiary; conjugated],
  *             lactam [ring_size, n_h], imide [ring_size, n_h], urea [n_h],
- *             carbamate [n_h], carbonate [ring_size], thioester (R-C(=O)-S-R',
+ *             carbamate [n_h], carbonate [ring_size], carbonate_ion (CO3 2-,
+ *             both O anionic or on a metal; HCO3- has no key), thioester (R-C(=O)-S-R',
  *             thiolactones too) [conjugated, aryl = vinyl/aryl on the S side,
  *             ring_size], thioacid (R-C(=O)-SH) [conjugated], thiocarbamate
  *             (R2N-C(=O)-S-R') [n_h], thiocarbonate (R-O-C(=O)-S-R') [ring_size]
@@ -28,7 +29,9 @@
  *             (N-NO2), nitrate_ion, n_oxide (R3N+-O-, aromatic N-oxides)
  *             [aryl], azo (C-N=N-C, neither N aromatic) [aryl =
  *             aromatic C on the N: 0/1/2], azide, diazo, isocyanate,
- *             isothiocyanate, carbodiimide, nitrile [conjugated], isonitrile
+ *             isothiocyanate, carbodiimide, nitrile [conjugated], isonitrile,
+ *             cyanide (HCN, CN-), thiocyanate (R-S-C#N), thiocyanate_ion,
+ *             cyanate_ester (R-O-C#N)
  *   C-C:      alkyne_terminal, alkyne_internal,
  *             alkene [pattern = vinyl | vinylidene | cis | trans | trisubstituted |
  *             tetrasubstituted | unknown (1,2-disubstituted, stereo not given) |
@@ -57,8 +60,9 @@
  *             aryl], epoxide, peroxide
  *   S:        thiol, sulfide, disulfide, sulfoxide, sulfone, sulfonamide [n_h],
  *             sulfonate_ester, sulfonic_acid, sulfonate (the anion),
- *             sulfonyl_chloride, thiocarbonyl, sulfate_ester ((RO)2SO2, with a
- *             caution), alkyl_sulfate (ROSO3- or ROSO3H)
+ *             sulfonyl_chloride, sulfonyl_fluoride, sulfate_ion, thiocarbonyl,
+ *             sulfate_ester ((RO)2SO2, with a caution), alkyl_sulfate (ROSO3- or
+ *             ROSO3H)
  *   P:        phosphine, phosphine_oxide, phosphate, phosphonate, p_h,
  *             p_aryl (a P carrying aromatic rings: PPh3, Ph3PO, Wittig salts)
  *             [aryl = how many]

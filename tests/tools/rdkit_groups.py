@@ -16,10 +16,16 @@ RDLogger.DisableLog("rdApp.*")
 
 # key -> SMARTS; each match is one instance of the group.
 DEFS = {
-    "nitrile": "[C]#[N;X1;+0]",
+    # C#N on carbon or N; HCN and CN- are cyanide, C#N on S or O a
+    # thiocyanate or cyanate ester
+    "nitrile": "[C;X2;!$([CH1]);!$(C-[#8,#16])]#[N;X1;+0]",
+    "cyanide": "[$([CX1-]),$([CH1])]#[NX1]",
+    "thiocyanate": "[#6]-[SX2]-C#[NX1]",
+    "thiocyanate_ion": "[SX1-]-C#[NX1]",
+    "cyanate_ester": "[#6]-[OX2]-C#[NX1]",
     "aldehyde": "[CX3;H1,H2;!$(C[O,N,S,F,Cl,Br,I])]=[OX1]",
     "phenol": "[OX2H1]-c",
-    "carboxylic_acid": "[CX3](=[OX1])[OX2H1]",
+    "carboxylic_acid": "[CX3;$([CH1]),$(C-[#6])](=[OX1])[OX2H1]",
     "nitro": "[#6]-[N+](=O)[O-]",
     "thiol": "[#6;!$([#6]=[O,S])]-[SX2H1]",
     "epoxide": "[OX2]1[#6][#6]1",
@@ -41,7 +47,7 @@ DEFS = {
     "isonitrile": "[C-]#[N+]",
     "si_h": "[Si;!H0]",
     "boronic_acid": "[BX3]([OH1])[OH1]",
-    "ether": "[OX2;!a;!r3]([#6;!$([#6]=[!#6])])[#6;!$([#6]=[!#6])]",
+    "ether": "[OX2;!a;!r3]([#6;!$([#6]=[!#6]);!$([#6]#[!#6])])[#6;!$([#6]=[!#6]);!$([#6]#[!#6])]",
     "ester": "[#6][#6X3](=[OX1])!@[OX2][#6;!$([#6]=[O,S])]",
     "lactone": "[#6][#6X3](=[OX1])@[#8X2]@[#6;!$([#6]=[O,S])]",
     "alkene": "[CX3;!a]=[CX3;!a]",
@@ -64,6 +70,10 @@ DEFS = {
     "azo": "[#6]-[NX2;!a;+0]=[NX2;!a;+0]-[#6]",
     # amine oxides and aromatic N-oxides (not nitro, not nitrones)
     "n_oxide": "[$([NX4+]),$([n+X3])]-[OX1-]",
+    # sulfonyl fluorides; the sulfate and carbonate ions as written with O-
+    "sulfonyl_fluoride": "[#6][SX4](=[OX1])(=[OX1])F",
+    "sulfate_ion": "[SX4](=[OX1])(=[OX1])([OX1-])[OX1-]",
+    "carbonate_ion": "[CX3](=[OX1])([OX1-])[OX1-]",
     # one per P or Si atom that carries an aromatic ring
     "p_aryl": "[#15;$([#15]-c)]",
     "si_aryl": "[Si;$([Si]-c)]",

@@ -455,6 +455,29 @@ static void heteroatom_groups(void **state)
 	       W("p_aryl", ANY, ANY, ANY, 3, ANY, NULL, 1), W("phosphine", ANY, ANY, ANY, ANY, ANY, NULL, 0));
 	EXPECT("TBDPS methyl ether", "CC(C)(C)[Si](OC)(c1ccccc1)c1ccccc1", NULL,
 	       W("si_aryl", ANY, ANY, ANY, 2, ANY, NULL, 1), W("siloxane", ANY, ANY, ANY, ANY, ANY, NULL, 1));
+	/* C#N on S or O, and cyanide: their own groups, the S or O theirs. */
+	EXPECT("ethyl thiocyanate", "CCSC#N", NULL, W("thiocyanate", ANY, ANY, ANY, ANY, ANY, NULL, 1),
+	       W("nitrile", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("sulfide", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("potassium thiocyanate", "N#C[S-].[K+]", NULL,
+	       W("thiocyanate_ion", ANY, ANY, ANY, ANY, ANY, NULL, 1), W("nitrile", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("phenyl cyanate", "N#COc1ccccc1", NULL, W("cyanate_ester", ANY, ANY, ANY, ANY, ANY, NULL, 1),
+	       W("ether", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("nitrile", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("potassium cyanide", "[C-]#N.[K+]", NULL, W("cyanide", ANY, ANY, ANY, ANY, ANY, NULL, 1),
+	       W("nitrile", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("malononitrile (nitriles)", "N#CCC#N", NULL, W("nitrile", ANY, ANY, ANY, ANY, ANY, NULL, 2),
+	       W("cyanide", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	/* Salts from work-ups and drying agents; a hydrogencarbonate has no key. */
+	EXPECT("sodium sulfate", "O=S(=O)([O-])[O-].[Na+].[Na+]", NULL,
+	       W("sulfate_ion", ANY, ANY, ANY, ANY, ANY, NULL, 1), W("sulfonate", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("potassium carbonate", "O=C([O-])[O-].[K+].[K+]", NULL,
+	       W("carbonate_ion", ANY, ANY, ANY, ANY, ANY, NULL, 1), W("carbonate", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("sodium hydrogencarbonate", "OC(=O)[O-].[Na+]", NULL,
+	       W("carbonate_ion", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("carbonate", ANY, ANY, ANY, ANY, ANY, NULL, 0),
+	       W("carboxylic_acid", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("dimethyl carbonate (still an ester)", "COC(=O)OC", NULL,
+	       W("carbonate", ANY, ANY, ANY, ANY, ANY, NULL, 1), W("carbonate_ion", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("PMSF", "O=S(=O)(F)Cc1ccccc1", NULL, W("sulfonyl_fluoride", ANY, ANY, ANY, ANY, ANY, NULL, 1),
+	       W("c_f", ANY, ANY, ANY, ANY, ANY, NULL, 0));
 	/* N-oxides: the O- is the N-oxide's, the N is no ammonium. */
 	EXPECT("N-methylmorpholine N-oxide", "C[N+]1([O-])CCOCC1", NULL,
 	       W("n_oxide", ANY, ANY, ANY, 0, ANY, NULL, 1), W("ammonium", ANY, ANY, ANY, ANY, ANY, NULL, 0),
