@@ -1739,13 +1739,16 @@ static void perceive_heteroatoms(ctx *c)
 				(void)x;
 			}
 		} else if (z == 15) {
-			int oxo = oxo_count(c, i), nO = 0, nC = 0;
+			int oxo = oxo_count(c, i), nO = 0, nC = 0, nOC = 0, nOm = 0;
 			FOR_NB(c, i, e) {
 				int j = c->na[e];
 				if (is_oxo(c, i, j, c->no[e], 8))
 					continue;
 				if (EL(c, j) == 8) {
 					nO++;
+					nOm += c->at[j].charge < 0;
+					FOR_NB(c, j, f)
+						nOC += EL(c, c->na[f]) == 6;
 					claim(c, j);
 				} else if (EL(c, j) == 6) {
 					nC++;
@@ -1754,6 +1757,10 @@ static void perceive_heteroatoms(ctx *c)
 			if (oxo == 0 && a->charge == 0 && a->degree + a->h_count == 3 &&
 			    nC == a->degree)
 				emit(c, "phosphine", i, -1, -1);
+			else if (oxo == 1 && nO == 3 && nOC == 0 && nOm > 0)
+				emit(c, "phosphate_ion", i, -1, -1); /* PO4 3-, HPO4 2-, H2PO4- */
+			else if (oxo == 1 && nO == 3 && nOC == 0)
+				; /* phosphoric acid: no key */
 			else if (oxo == 1 && nO == 3)
 				emit(c, "phosphate", i, -1, -1);
 			else if (oxo == 1 && nO >= 1)
@@ -1802,6 +1809,8 @@ static void perceive_heteroatoms(ctx *c)
 				emit(c, "boronic_acid", i, -1, -1);
 			else if (orr >= 2)
 				emit(c, "boronic_ester", i, -1, -1);
+			if (a->h_count > 0) /* NaBH4, NaBH3CN, STAB, boranes */
+				emit(c, "b_h", i, -1, -1);
 		} else if (z == 17 && a->degree == 4) {
 			/* ClO4 (ester or anion, however the charges are written). */
 			c->caution[CAU_PERCHLORATE] = 1;

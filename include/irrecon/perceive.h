@@ -63,11 +63,12 @@
  *             sulfonyl_chloride, sulfonyl_fluoride, sulfate_ion, thiocarbonyl,
  *             sulfate_ester ((RO)2SO2, with a caution), alkyl_sulfate (ROSO3- or
  *             ROSO3H)
- *   P:        phosphine, phosphine_oxide, phosphate, phosphonate, p_h,
+ *   P:        phosphine, phosphine_oxide, phosphate (ester), phosphate_ion
+ *             (PO4 3-, HPO4 2-, H2PO4-; phosphoric acid has no key), phosphonate, p_h,
  *             p_aryl (a P carrying aromatic rings: PPh3, Ph3PO, Wittig salts)
  *             [aryl = how many]
  *   Si, B:    si_h, si_methyl, si_aryl [aryl = how many], siloxane (Si-O-Si or
- *             Si-O-C), boronic_acid,
+ *             Si-O-C), b_h (borohydrides, boranes), boronic_acid,
  *             boronic_ester
  *   halogen:  c_f, c_cl, c_br, c_i [aryl]
  *   other:    water (a water molecule as a component, e.g. a hydrate)

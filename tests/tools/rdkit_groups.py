@@ -74,6 +74,10 @@ DEFS = {
     "sulfonyl_fluoride": "[#6][SX4](=[OX1])(=[OX1])F",
     "sulfate_ion": "[SX4](=[OX1])(=[OX1])([OX1-])[OX1-]",
     "carbonate_ion": "[CX3](=[OX1])([OX1-])[OX1-]",
+    # PO4 3-, HPO4 2-, H2PO4- (at least one O-, no O-C); any B-H
+    "phosphate_ion": "[PX4;$(P[OX1-])](=[OX1])([$([OX1-]),$([OX2H1])])([$([OX1-]),$([OX2H1])])"
+                     "[$([OX1-]),$([OX2H1])]",
+    "b_h": "[#5;!H0]",
     # one per P or Si atom that carries an aromatic ring
     "p_aryl": "[#15;$([#15]-c)]",
     "si_aryl": "[Si;$([Si]-c)]",

@@ -476,6 +476,13 @@ static void heteroatom_groups(void **state)
 	       W("carboxylic_acid", ANY, ANY, ANY, ANY, ANY, NULL, 0));
 	EXPECT("dimethyl carbonate (still an ester)", "COC(=O)OC", NULL,
 	       W("carbonate", ANY, ANY, ANY, ANY, ANY, NULL, 1), W("carbonate_ion", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("potassium phosphate", "[O-]P(=O)([O-])[O-].[K+].[K+].[K+]", NULL,
+	       W("phosphate_ion", ANY, ANY, ANY, ANY, ANY, NULL, 1), W("phosphate", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("potassium dihydrogenphosphate", "OP(=O)(O)[O-].[K+]", NULL,
+	       W("phosphate_ion", ANY, ANY, ANY, ANY, ANY, NULL, 1), W("phosphate", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("phosphoric acid (no key)", "OP(O)(O)=O", NULL,
+	       W("phosphate_ion", ANY, ANY, ANY, ANY, ANY, NULL, 0), W("phosphate", ANY, ANY, ANY, ANY, ANY, NULL, 0));
+	EXPECT("sodium borohydride", "[BH4-].[Na+]", NULL, W("b_h", ANY, ANY, ANY, ANY, ANY, NULL, 1));
 	EXPECT("PMSF", "O=S(=O)(F)Cc1ccccc1", NULL, W("sulfonyl_fluoride", ANY, ANY, ANY, ANY, ANY, NULL, 1),
 	       W("c_f", ANY, ANY, ANY, ANY, ANY, NULL, 0));
 	/* N-oxides: the O- is the N-oxide's, the N is no ammonium. */
