@@ -1536,6 +1536,7 @@ int irr_check_run(irr_check *c, irr_error *err)
 			other_in *oi = &c->others[k];
 			irr_other *r = &c->ores[k];
 			size_t found = 0, observable = 0;
+			int top_class = 0;
 			oi->markers = calloc(oi->nbands + 1, sizeof *oi->markers);
 			if (!oi->markers)
 				goto nomem;
@@ -1548,6 +1549,10 @@ int irr_check_run(irr_check *c, irr_error *err)
 				if (ob->overtone || iclass(ob->intensity) < 2 ||
 				    (iclass(ob->intensity) < 3 && ob->weight < 0.3))
 					continue;
+				/* its strongest class in range, also of bands the product
+				 * hides (below) */
+				if (ob->high > rlo && ob->low < rhi && iclass(ob->intensity) > top_class)
+					top_class = iclass(ob->intensity);
 				/* The product explains it when one of its own bands, not
 				 * an overtone and not two classes weaker, holds its
 				 * typical position (within 5 cm-1). */
@@ -1645,7 +1650,13 @@ int irr_check_run(irr_check *c, irr_error *err)
 					else if (iclass(mk->intensity) >= fp_class)
 						diag_missing++;
 				}
-				if (diag_found || (fp_found && !diag_missing) || fp_found >= 2)
+				/* One fingerprint coincidence alone speaks only when it is
+				 * of the substance's strongest class: a salt whose strong
+				 * band lies under the product's and whose medium one meets
+				 * a band of the product's (K2CO3 beside n-hexane: 886 cm-1
+				 * at 0.03 x; beside indene: 861) is no evidence. */
+				if (diag_found || (fp_found && !diag_missing && fp_class >= top_class) ||
+				    fp_found >= 2)
 					r->presence = IRR_PRESENCE_LIKELY_PRESENT;
 				else if (observable)
 					r->presence = IRR_PRESENCE_ABSENT;
