@@ -97,14 +97,17 @@ FIVE_RING_KEYS = ("pyrrole_ring", "azole_ring", "pyrrole_nh", "azole_nh")
 SIX_RING_KEYS = ("pyridine_ring", "azine_ring")
 
 
+def aromatic_rings(mol, size):
+    """The atoms of each all-aromatic ring of the given size in RDKit's SSSR."""
+    for r in Chem.GetSSSR(mol):
+        atoms = [mol.GetAtomWithIdx(i) for i in r]
+        if len(r) == size and all(a.GetIsAromatic() for a in atoms):
+            yield atoms
+
+
 def six_rings(mol):
     n_of = dict.fromkeys(SIX_RING_KEYS, 0)
-    for r in Chem.GetSSSR(mol):
-        if len(r) != 6:
-            continue
-        atoms = [mol.GetAtomWithIdx(i) for i in r]
-        if not all(a.GetIsAromatic() for a in atoms):
-            continue
+    for atoms in aromatic_rings(mol, 6):
         n = sum(a.GetAtomicNum() == 7 for a in atoms)
         if not any(a.GetAtomicNum() == 7 and a.GetTotalNumHs() == 0 and
                    (a.GetDegree() == 2 or (a.GetDegree() == 3 and a.GetFormalCharge() == 1 and
@@ -118,12 +121,7 @@ def six_rings(mol):
 
 def five_rings(mol):
     n_of = dict.fromkeys(FIVE_RING_KEYS, 0)
-    for r in Chem.GetSSSR(mol):
-        if len(r) != 5:
-            continue
-        atoms = [mol.GetAtomWithIdx(i) for i in r]
-        if not all(a.GetIsAromatic() for a in atoms):
-            continue
+    for atoms in aromatic_rings(mol, 5):
         z = [a.GetAtomicNum() for a in atoms]
         n, o, s, c = z.count(7), z.count(8), z.count(16), z.count(6)
         if n >= 1 and n + o + s >= 2:
@@ -161,9 +159,8 @@ def main():
             continue
         for key, pat in pats.items():
             if key == "benzene_ring":
-                n = sum(1 for r in Chem.GetSSSR(mol) if len(r) == 6 and all(
-                    mol.GetAtomWithIdx(i).GetIsAromatic() and
-                    mol.GetAtomWithIdx(i).GetAtomicNum() == 6 for i in r))
+                n = sum(1 for atoms in aromatic_rings(mol, 6)
+                        if all(a.GetAtomicNum() == 6 for a in atoms))
             elif key in FIVE_RING_KEYS:
                 n = five_rings(mol)[key]
             elif key in SIX_RING_KEYS:
