@@ -179,39 +179,42 @@ static void json_lines_rows(void **state)
 
 static char tmpdir[256];
 
-static void make_tree(void)
+/* An empty file at tmpdir/rel. */
+static void touch(const char *rel)
 {
 	char p[512];
 	FILE *f;
+	snprintf(p, sizeof p, "%s/%s", tmpdir, rel);
+	f = fopen(p, "w");
+	assert_non_null(f);
+	fclose(f);
+}
+
+static void make_dir(const char *rel)
+{
+	char p[512];
+	snprintf(p, sizeof p, "%s/%s", tmpdir, rel);
+	assert_int_equal(mkdir(p, 0777), 0);
+}
+
+static void make_tree(void)
+{
+	char p[512], target[512];
 	snprintf(tmpdir, sizeof tmpdir, "/tmp/irrecon-test-batch-XXXXXX");
 	assert_non_null(mkdtemp(tmpdir));
-	snprintf(p, sizeof p, "%s/plate", tmpdir);
-	assert_int_equal(mkdir(p, 0777), 0);
-	snprintf(p, sizeof p, "%s/plate/in.jdx", tmpdir);
-	f = fopen(p, "w");
-	assert_non_null(f);
-	fclose(f);
-	snprintf(p, sizeof p, "%s/secret.jdx", tmpdir);
-	f = fopen(p, "w");
-	assert_non_null(f);
-	fclose(f);
-	{
-		char target[512];
-		snprintf(target, sizeof target, "%s/secret.jdx", tmpdir);
-		snprintf(p, sizeof p, "%s/plate/link.jdx", tmpdir);
-		assert_int_equal(symlink(target, p), 0);
-		snprintf(p, sizeof p, "%s/plate/inner.jdx", tmpdir);
-		assert_int_equal(symlink("in.jdx", p), 0);
-		/* A folder inside, and a folder link that leads out of the plate. */
-		snprintf(p, sizeof p, "%s/plate/sub", tmpdir);
-		assert_int_equal(mkdir(p, 0777), 0);
-		snprintf(p, sizeof p, "%s/plate/sub/a.jdx", tmpdir);
-		f = fopen(p, "w");
-		assert_non_null(f);
-		fclose(f);
-		snprintf(p, sizeof p, "%s/plate/away", tmpdir);
-		assert_int_equal(symlink(tmpdir, p), 0);
-	}
+	make_dir("plate");
+	touch("plate/in.jdx");
+	touch("secret.jdx");
+	snprintf(target, sizeof target, "%s/secret.jdx", tmpdir);
+	snprintf(p, sizeof p, "%s/plate/link.jdx", tmpdir);
+	assert_int_equal(symlink(target, p), 0);
+	snprintf(p, sizeof p, "%s/plate/inner.jdx", tmpdir);
+	assert_int_equal(symlink("in.jdx", p), 0);
+	/* A folder inside, and a folder link that leads out of the plate. */
+	make_dir("plate/sub");
+	touch("plate/sub/a.jdx");
+	snprintf(p, sizeof p, "%s/plate/away", tmpdir);
+	assert_int_equal(symlink(tmpdir, p), 0);
 }
 
 static void remove_tree(void)
